@@ -1,0 +1,42 @@
+// Two-dimensional discrete Fourier transform by the row–column decomposition of a separable transform
+// (e.g. Press et al. 2007, Numerical Recipes 3rd ed., §12.5), each 1-D pass by the radix-4 FFT of fft.js.
+import FFT from "fft.js";
+
+export function isPowerOfTwo(n: number): boolean {
+  return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
+}
+
+/** In-place 2-D complex FFT of an interleaved (re, im) array of width × height, row-major.
+ *  `inverse` divides by width·height (fft.js's inverse divides by each length). */
+export function fft2d(data: Float64Array, width: number, height: number, inverse = false): void {
+  if (!isPowerOfTwo(width) || !isPowerOfTwo(height)) {
+    throw new RangeError(`FFT sizes must be powers of two ≥ 2, got ${width}×${height}`);
+  }
+  if (data.length !== 2 * width * height) throw new RangeError(`expected ${2 * width * height} values, got ${data.length}`);
+  const rowFft = new FFT(width);
+  const rowIn = new Float64Array(2 * width), rowOut = new Float64Array(2 * width);
+  for (let y = 0; y < height; y++) {
+    const off = 2 * y * width;
+    rowIn.set(data.subarray(off, off + 2 * width));
+    if (inverse) rowFft.inverseTransform(rowOut, rowIn); else rowFft.transform(rowOut, rowIn);
+    data.set(rowOut, off);
+  }
+  const colFft = new FFT(height);
+  const colIn = new Float64Array(2 * height), colOut = new Float64Array(2 * height);
+  for (let x = 0; x < width; x++) {
+    for (let y = 0; y < height; y++) {
+      const i = 2 * (y * width + x);
+      colIn[2 * y] = data[i]; colIn[2 * y + 1] = data[i + 1];
+    }
+    if (inverse) colFft.inverseTransform(colOut, colIn); else colFft.transform(colOut, colIn);
+    for (let y = 0; y < height; y++) {
+      const i = 2 * (y * width + x);
+      data[i] = colOut[2 * y]; data[i + 1] = colOut[2 * y + 1];
+    }
+  }
+}
+
+/** Signed frequency index of FFT bin i of n (0, 1, …, n/2, −n/2+1, …, −1). */
+export function signedFrequency(i: number, n: number): number {
+  return i <= n / 2 ? i : i - n;
+}
