@@ -1,0 +1,390 @@
+"use client";
+
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useId, useState, type FormEvent } from "react";
+import {
+  ApiKeyCreateBody,
+  ApiKeyRotateBody,
+  type ApiKeyBody,
+  type ApiKeyCreateInput,
+  type z,
+} from "@/lib/api/schemas";
+import { SCOPES, type Scope } from "@/lib/auth/permissions";
+import { ApiProblem, api, describeProblem } from "@/components/data/api";
+import { allows, useMe } from "@/components/data/use-me";
+import { checkWith, fieldErrorsOfProblem, type FieldErrors } from "@/components/forms/field-errors";
+import { formatInstant } from "@/components/format/instant";
+import { Alert } from "@/components/ui/alert";
+import { Badge, type BadgeTone } from "@/components/ui/badge";
+import { Button } from "@/components/ui/button";
+import { ConfirmDialog } from "@/components/ui/confirm-dialog";
+import { CopyButton } from "@/components/ui/copy-button";
+import { Dialog } from "@/components/ui/dialog";
+import { CheckboxGroup, TextField } from "@/components/ui/field";
+import { PageHeader } from "@/components/ui/page-header";
+
+const KEYS_QUERY_KEY = ["keys"] as const;
+const DEFAULT_GRACE_HOURS = 24;
+
+const SCOPE_HINTS: Record<Scope, string> = {
+  "datasets:write": "upload and delete datasets",
+  "jobs:write": "queue and cancel analyses",
+  "jobs:read": "follow analyses",
+  "results:read": "read and download results",
+  "provenance:read": "download signed provenance",
+  admin: "everything an org admin may do",
+};
+
+type Open =
+  | { kind: "create" }
+  | { kind: "secret"; key: ApiKeyBody; secret: string; rotated: boolean }
+  | { kind: "rotate"; key: ApiKeyBody }
+  | { kind: "revoke"; key: ApiKeyBody }
+  | null;
+
+function keyStatus(key: ApiKeyBody, now: number): { tone: BadgeTone; text: string } {
+  if (key.revokedAt !== null) return { tone: "bad", text: "Revoked" };
+  if (key.expiresAt !== null && Date.parse(key.expiresAt) <= now) return { tone: "bad", text: "Expired" };
+  if (key.graceUntil !== null && Date.parse(key.graceUntil) > now) {
+    return { tone: "warn", text: `Rotated; old secret valid until ${formatInstant(key.graceUntil)}` };
+  }
+  return { tone: "good", text: "Active" };
+}
+
+export function KeysPanel() {
+  const { data: me } = useMe();
+  const manage = allows(me, "keys:manage");
+  const keys = useQuery({ queryKey: KEYS_QUERY_KEY, queryFn: () => api<{ items: ApiKeyBody[] }>("/keys") });
+  const [open, setOpen] = useState<Open>(null);
+  const forbidden = keys.error instanceof ApiProblem && keys.error.status === 403;
+  const now = Date.now();
+
+  return (
+    <>
+      <PageHeader
+        title="API keys"
+        description="Keys let scripts call the API for this organisation. Each key holds only the scopes it needs; its secret is shown once."
+        actions={
+          manage ? (
+            <Button variant="primary" onClick={() => setOpen({ kind: "create" })}>
+              Create key
+            </Button>
+          ) : undefined
+        }
+      />
+      {!manage && (
+        <div className="mb-4">
+          <Alert tone="info">Your role ({me?.role ?? "—"}) cannot create, rotate or revoke API keys.</Alert>
+        </div>
+      )}
+      {keys.error !== null && !forbidden && <Alert>{describeProblem(keys.error)}</Alert>}
+      {keys.data !== undefined && (
+        <div className="card overflow-x-auto">
+          <table className="table-dense" aria-label="API keys">
+            <thead>
+              <tr>
+                <th scope="col">Name</th>
+                <th scope="col">Key</th>
+                <th scope="col">Scopes</th>
+                <th scope="col">Created</th>
+                <th scope="col">Expires</th>
+                <th scope="col">Last used</th>
+                <th scope="col">Status</th>
+                {manage && (
+                  <th scope="col">
+                    <span className="sr-only">Actions</span>
+                  </th>
+                )}
+              </tr>
+            </thead>
+            <tbody>
+              {keys.data.items.length === 0 && (
+                <tr>
+                  <td colSpan={manage ? 8 : 7} className="py-6 text-center text-graphite-muted">
+                    No keys yet.
+                  </td>
+                </tr>
+              )}
+              {keys.data.items.map((key) => {
+                const status = keyStatus(key, now);
+                const live = key.revokedAt === null;
+                return (
+                  <tr key={key.id}>
+                    <td className="font-medium">{key.name}</td>
+                    <td className="font-mono text-xs">{key.prefix}…</td>
+                    <td>
+                      <div className="flex max-w-xs flex-wrap gap-1">
+                        {key.scopes.map((s) => (
+                          <Badge key={s}>
+                            <span className="font-mono">{s}</span>
+                          </Badge>
+                        ))}
+                      </div>
+                    </td>
+                    <td className="whitespace-nowrap">{formatInstant(key.createdAt)}</td>
+                    <td className="whitespace-nowrap">{key.expiresAt === null ? "never" : formatInstant(key.expiresAt)}</td>
+                    <td className="whitespace-nowrap">{key.lastUsedAt === null ? "never" : formatInstant(key.lastUsedAt)}</td>
+                    <td>
+                      <Badge tone={status.tone}>{status.text}</Badge>
+                    </td>
+                    {manage && (
+                      <td className="whitespace-nowrap text-right">
+                        {live && (
+                          <div className="flex justify-end gap-1.5">
+                            <Button size="sm" aria-label={`Rotate ${key.name}`} onClick={() => setOpen({ kind: "rotate", key })}>
+                              Rotate
+                            </Button>
+                            <Button size="sm" aria-label={`Revoke ${key.name}`} onClick={() => setOpen({ kind: "revoke", key })}>
+                              Revoke
+                            </Button>
+                          </div>
+                        )}
+                      </td>
+                    )}
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+        </div>
+      )}
+      {keys.isPending && !forbidden && <p className="text-graphite-muted">Loading keys…</p>}
+
+      {open?.kind === "create" && (
+        <CreateKeyDialog
+          onClose={() => setOpen(null)}
+          onCreated={(key, secret) => setOpen({ kind: "secret", key, secret, rotated: false })}
+        />
+      )}
+      {open?.kind === "rotate" && (
+        <RotateKeyDialog
+          apiKey={open.key}
+          onClose={() => setOpen(null)}
+          onRotated={(key, secret) => setOpen({ kind: "secret", key, secret, rotated: true })}
+        />
+      )}
+      {open?.kind === "revoke" && <RevokeKeyDialog apiKey={open.key} onClose={() => setOpen(null)} />}
+      {open?.kind === "secret" && (
+        <SecretDialog apiKey={open.key} secret={open.secret} rotated={open.rotated} onClose={() => setOpen(null)} />
+      )}
+    </>
+  );
+}
+
+/** `YYYY-MM-DD` from a date input → the end of that day in UTC, so "expires on the 3rd" includes the 3rd. */
+function endOfUtcDay(date: string): string | undefined {
+  return date === "" ? undefined : `${date}T23:59:59.999Z`;
+}
+
+function CreateKeyDialog({
+  onClose,
+  onCreated,
+}: {
+  onClose: () => void;
+  onCreated: (key: ApiKeyBody, secret: string) => void;
+}) {
+  const queryClient = useQueryClient();
+  const formId = useId();
+  const [name, setName] = useState("");
+  const [scopes, setScopes] = useState<string[]>([]);
+  const [expiresOn, setExpiresOn] = useState("");
+  const [errors, setErrors] = useState<FieldErrors>({});
+
+  const create = useMutation({
+    mutationFn: (body: ApiKeyCreateInput) =>
+      api<{ key: ApiKeyBody; secret: string }>("/keys", { method: "POST", body }),
+    onSuccess: (result) => {
+      void queryClient.invalidateQueries({ queryKey: KEYS_QUERY_KEY });
+      onCreated(result.key, result.secret);
+    },
+    onError: (error) => setErrors(fieldErrorsOfProblem(error)),
+  });
+
+  function submit(event: FormEvent) {
+    event.preventDefault();
+    const expiresAt = endOfUtcDay(expiresOn);
+    const checked = checkWith(ApiKeyCreateBody, { name, scopes, ...(expiresAt === undefined ? {} : { expiresAt }) });
+    const past = expiresAt !== undefined && Date.parse(expiresAt) <= Date.now();
+    setErrors({ ...(checked.ok ? {} : checked.errors), ...(past ? { expiresAt: "must be in the future" } : {}) });
+    if (checked.ok && !past) create.mutate(checked.data);
+  }
+
+  return (
+    <Dialog
+      open
+      title="Create an API key"
+      onClose={onClose}
+      actions={
+        <>
+          <Button onClick={onClose} disabled={create.isPending}>
+            Cancel
+          </Button>
+          <Button type="submit" form={formId} variant="primary" disabled={create.isPending}>
+            {create.isPending ? "Creating…" : "Create"}
+          </Button>
+        </>
+      }
+    >
+      <form id={formId} onSubmit={submit} noValidate className="flex flex-col gap-4">
+        <TextField
+          label="Name"
+          value={name}
+          onChange={(e) => setName(e.target.value)}
+          hint="What uses it, e.g. “nightly basin run”."
+          error={errors.name}
+        />
+        <CheckboxGroup
+          legend="Scopes"
+          options={SCOPES.map((s) => ({ value: s, hint: SCOPE_HINTS[s] }))}
+          value={scopes}
+          onChange={setScopes}
+          error={errors.scopes}
+        />
+        <TextField
+          label="Expires on (optional)"
+          type="date"
+          value={expiresOn}
+          onChange={(e) => setExpiresOn(e.target.value)}
+          hint="The key stops working at the end of that day (UTC). Leave empty for no expiry."
+          error={errors.expiresAt}
+        />
+        {create.error !== null && <Alert>{describeProblem(create.error)}</Alert>}
+      </form>
+    </Dialog>
+  );
+}
+
+function SecretDialog({
+  apiKey,
+  secret,
+  rotated,
+  onClose,
+}: {
+  apiKey: ApiKeyBody;
+  secret: string;
+  rotated: boolean;
+  onClose: () => void;
+}) {
+  return (
+    <Dialog
+      open
+      title={rotated ? `New secret for “${apiKey.name}”` : `Key “${apiKey.name}” created`}
+      onClose={onClose}
+      actions={
+        <Button variant="primary" onClick={onClose}>
+          I have stored it
+        </Button>
+      }
+    >
+      <Alert tone="warning">
+        Copy the secret now. It is shown only once: Rillscale keeps a hash of it, not the secret.
+      </Alert>
+      <div>
+        <label className="label" htmlFor="new-key-secret">
+          Secret
+        </label>
+        <div className="flex items-center gap-2">
+          <input
+            id="new-key-secret"
+            readOnly
+            value={secret}
+            className="input font-mono text-xs"
+            onFocus={(e) => e.target.select()}
+          />
+          <CopyButton text={secret} label="Copy secret" />
+        </div>
+      </div>
+      {rotated && apiKey.graceUntil !== null && (
+        <p className="text-graphite-muted">
+          The previous secret keeps working until {formatInstant(apiKey.graceUntil)}, so running scripts can switch
+          over; after that it is refused.
+        </p>
+      )}
+    </Dialog>
+  );
+}
+
+function RotateKeyDialog({
+  apiKey,
+  onClose,
+  onRotated,
+}: {
+  apiKey: ApiKeyBody;
+  onClose: () => void;
+  onRotated: (key: ApiKeyBody, secret: string) => void;
+}) {
+  const queryClient = useQueryClient();
+  const [graceHours, setGraceHours] = useState(String(DEFAULT_GRACE_HOURS));
+  const [errors, setErrors] = useState<FieldErrors>({});
+  const rotate = useMutation({
+    mutationFn: (body: z.infer<typeof ApiKeyRotateBody>) =>
+      api<{ key: ApiKeyBody; secret: string }>(`/keys/${encodeURIComponent(apiKey.id)}/rotate`, { method: "POST", body }),
+    onSuccess: (result) => {
+      void queryClient.invalidateQueries({ queryKey: KEYS_QUERY_KEY });
+      onRotated(result.key, result.secret);
+    },
+    onError: (error) => setErrors(fieldErrorsOfProblem(error)),
+  });
+
+  function confirm() {
+    const checked = checkWith(ApiKeyRotateBody, { graceHours: graceHours === "" ? undefined : Number(graceHours) });
+    setErrors(checked.ok ? {} : checked.errors);
+    if (checked.ok) rotate.mutate(checked.data);
+  }
+
+  return (
+    <ConfirmDialog
+      open
+      title={`Rotate “${apiKey.name}”?`}
+      confirmLabel="Rotate key"
+      tone="primary"
+      pending={rotate.isPending}
+      error={Object.keys(errors).length > 0 ? null : rotate.error}
+      onConfirm={confirm}
+      onClose={onClose}
+    >
+      <p>
+        A new secret replaces the current one. The current secret keeps working during the grace period, then it is
+        refused. The org&apos;s admins are e-mailed.
+      </p>
+      <TextField
+        label="Grace period (hours)"
+        type="number"
+        min={0}
+        step={1}
+        inputMode="numeric"
+        value={graceHours}
+        onChange={(e) => setGraceHours(e.target.value)}
+        hint="0 refuses the current secret at once."
+        error={errors.graceHours}
+      />
+    </ConfirmDialog>
+  );
+}
+
+function RevokeKeyDialog({ apiKey, onClose }: { apiKey: ApiKeyBody; onClose: () => void }) {
+  const queryClient = useQueryClient();
+  const revoke = useMutation({
+    mutationFn: () => api<{ key: ApiKeyBody }>(`/keys/${encodeURIComponent(apiKey.id)}/revoke`, { method: "POST" }),
+    onSuccess: () => {
+      void queryClient.invalidateQueries({ queryKey: KEYS_QUERY_KEY });
+      onClose();
+    },
+  });
+  return (
+    <ConfirmDialog
+      open
+      title={`Revoke “${apiKey.name}”?`}
+      confirmLabel="Revoke key"
+      pending={revoke.isPending}
+      error={revoke.error}
+      onConfirm={() => revoke.mutate()}
+      onClose={onClose}
+    >
+      <p>
+        Every request with this key, including a secret still in its grace period, is refused from now on. This cannot be
+        undone; scripts need a new key.
+      </p>
+    </ConfirmDialog>
+  );
+}

@@ -1,0 +1,255 @@
+"use client";
+
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useState, type FormEvent } from "react";
+import { InvitationCreateBody, type InvitationBody, type MemberBody, type z } from "@/lib/api/schemas";
+import { ROLES, type Role } from "@/lib/auth/permissions";
+import { ApiProblem, api, describeProblem } from "@/components/data/api";
+import { allows, useMe } from "@/components/data/use-me";
+import { checkWith, fieldErrorsOfProblem, type FieldErrors } from "@/components/forms/field-errors";
+import { formatInstant } from "@/components/format/instant";
+import { Alert } from "@/components/ui/alert";
+import { Badge } from "@/components/ui/badge";
+import { Button } from "@/components/ui/button";
+import { ConfirmDialog } from "@/components/ui/confirm-dialog";
+import { SelectField, TextField } from "@/components/ui/field";
+import { PageHeader } from "@/components/ui/page-header";
+
+const MEMBERS_QUERY_KEY = ["members"] as const;
+const INVITATIONS_QUERY_KEY = ["invitations"] as const;
+
+const ROLE_WORDS: Record<Role, string> = {
+  admin: "admin — everything, including keys and members",
+  analyst: "analyst — datasets, analyses and results",
+  auditor: "auditor — reads the audit log, results and provenance",
+};
+const ROLE_OPTIONS = ROLES.map((r) => ({ value: r, label: r }));
+
+type Pending = { kind: "role"; member: MemberBody; role: Role } | { kind: "remove"; member: MemberBody } | null;
+
+export function MembersPanel() {
+  const { data: me } = useMe();
+  const manage = allows(me, "members:manage");
+  const members = useQuery({ queryKey: MEMBERS_QUERY_KEY, queryFn: () => api<{ items: MemberBody[] }>("/members") });
+  const invitations = useQuery({
+    queryKey: INVITATIONS_QUERY_KEY,
+    queryFn: () => api<{ items: InvitationBody[] }>("/invitations"),
+    enabled: manage,
+  });
+  const [pending, setPending] = useState<Pending>(null);
+  const forbidden = members.error instanceof ApiProblem && members.error.status === 403;
+
+  return (
+    <>
+      <PageHeader title="Members" description="People in this organisation and what their role lets them do." />
+      {!manage && (
+        <div className="mb-4">
+          <Alert tone="info">Your role ({me?.role ?? "—"}) cannot invite members or change roles.</Alert>
+        </div>
+      )}
+      {manage && <InviteForm />}
+      {members.error !== null && !forbidden && <Alert>{describeProblem(members.error)}</Alert>}
+      {members.data !== undefined && (
+        <div className="card overflow-x-auto">
+          <table className="table-dense" aria-label="Members">
+            <thead>
+              <tr>
+                <th scope="col">Name</th>
+                <th scope="col">E-mail</th>
+                <th scope="col">Role</th>
+                <th scope="col">Joined</th>
+                {manage && (
+                  <th scope="col">
+                    <span className="sr-only">Actions</span>
+                  </th>
+                )}
+              </tr>
+            </thead>
+            <tbody>
+              {members.data.items.map((member) => {
+                const self = member.userId === me?.user?.id;
+                return (
+                  <tr key={member.userId}>
+                    <td className="font-medium">
+                      {member.name} {self && <Badge>you</Badge>}
+                    </td>
+                    <td>{member.email}</td>
+                    <td>
+                      {manage ? (
+                        <select
+                          aria-label={`Role of ${member.email}`}
+                          className="input w-32 py-0.5 text-dense"
+                          value={member.role}
+                          onChange={(e) => setPending({ kind: "role", member, role: e.target.value as Role })}
+                        >
+                          {ROLES.map((r) => (
+                            <option key={r} value={r}>
+                              {r}
+                            </option>
+                          ))}
+                        </select>
+                      ) : (
+                        member.role
+                      )}
+                    </td>
+                    <td className="whitespace-nowrap">{formatInstant(member.joinedAt)}</td>
+                    {manage && (
+                      <td className="text-right">
+                        <Button size="sm" aria-label={`Remove ${member.email}`} onClick={() => setPending({ kind: "remove", member })}>
+                          Remove
+                        </Button>
+                      </td>
+                    )}
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+        </div>
+      )}
+      {manage && invitations.data !== undefined && invitations.data.items.length > 0 && (
+        <section className="mt-6" aria-labelledby="pending-heading">
+          <h2 id="pending-heading" className="mb-2">
+            Pending invitations
+          </h2>
+          <div className="card overflow-x-auto">
+            <table className="table-dense" aria-label="Pending invitations">
+              <thead>
+                <tr>
+                  <th scope="col">E-mail</th>
+                  <th scope="col">Role</th>
+                  <th scope="col">Sent</th>
+                  <th scope="col">Link expires</th>
+                </tr>
+              </thead>
+              <tbody>
+                {invitations.data.items.map((inv) => (
+                  <tr key={inv.id}>
+                    <td>{inv.email}</td>
+                    <td>{inv.role}</td>
+                    <td className="whitespace-nowrap">{formatInstant(inv.createdAt)}</td>
+                    <td className="whitespace-nowrap">{formatInstant(inv.expiresAt)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </section>
+      )}
+      {pending?.kind === "role" && (
+        <ChangeRoleDialog member={pending.member} role={pending.role} onClose={() => setPending(null)} />
+      )}
+      {pending?.kind === "remove" && <RemoveMemberDialog member={pending.member} onClose={() => setPending(null)} />}
+    </>
+  );
+}
+
+function InviteForm() {
+  const queryClient = useQueryClient();
+  const [values, setValues] = useState<{ email: string; role: Role }>({ email: "", role: "analyst" });
+  const [errors, setErrors] = useState<FieldErrors>({});
+  const invite = useMutation({
+    mutationFn: (body: z.infer<typeof InvitationCreateBody>) =>
+      api<InvitationBody>("/invitations", { method: "POST", body }),
+    onSuccess: () => {
+      void queryClient.invalidateQueries({ queryKey: INVITATIONS_QUERY_KEY });
+      setValues({ email: "", role: values.role });
+    },
+    onError: (error) => setErrors(fieldErrorsOfProblem(error)),
+  });
+
+  function submit(event: FormEvent) {
+    event.preventDefault();
+    const checked = checkWith(InvitationCreateBody, values);
+    setErrors(checked.ok ? {} : checked.errors);
+    if (checked.ok) invite.mutate(checked.data);
+  }
+
+  return (
+    <form onSubmit={submit} noValidate className="card mb-5 p-4" aria-label="Invite a member">
+      <h2 className="mb-3">Invite a member</h2>
+      <div className="grid items-start gap-3 md:grid-cols-[1fr_16rem_auto]">
+        <TextField
+          label="E-mail"
+          type="email"
+          value={values.email}
+          onChange={(e) => setValues({ ...values, email: e.target.value })}
+          error={errors.email}
+        />
+        <SelectField
+          label="Role"
+          options={ROLE_OPTIONS}
+          value={values.role}
+          onChange={(e) => setValues({ ...values, role: e.target.value as Role })}
+          hint={ROLE_WORDS[values.role]}
+          error={errors.role}
+        />
+        <Button type="submit" variant="primary" className="md:mt-5" disabled={invite.isPending}>
+          Send invitation
+        </Button>
+      </div>
+      <div className="mt-3 empty:hidden">
+        {invite.isSuccess && (
+          <Alert tone="info">
+            Invitation sent to {invite.data.email}; the link expires {formatInstant(invite.data.expiresAt)}.
+          </Alert>
+        )}
+        {invite.error !== null && <Alert>{describeProblem(invite.error)}</Alert>}
+      </div>
+    </form>
+  );
+}
+
+function ChangeRoleDialog({ member, role, onClose }: { member: MemberBody; role: Role; onClose: () => void }) {
+  const queryClient = useQueryClient();
+  const change = useMutation({
+    mutationFn: () =>
+      api<MemberBody>(`/members/${encodeURIComponent(member.userId)}`, { method: "PATCH", body: { role } }),
+    onSuccess: () => {
+      void queryClient.invalidateQueries({ queryKey: MEMBERS_QUERY_KEY });
+      onClose();
+    },
+  });
+  return (
+    <ConfirmDialog
+      open
+      title={`Make ${member.name} ${role === "admin" ? "an" : "a"} ${role}?`}
+      confirmLabel="Change role"
+      tone="primary"
+      pending={change.isPending}
+      error={change.error}
+      onConfirm={() => change.mutate()}
+      onClose={onClose}
+    >
+      <p>
+        {member.email} is {member.role} now. New role: {ROLE_WORDS[role]}.
+      </p>
+    </ConfirmDialog>
+  );
+}
+
+function RemoveMemberDialog({ member, onClose }: { member: MemberBody; onClose: () => void }) {
+  const queryClient = useQueryClient();
+  const remove = useMutation({
+    mutationFn: () => api<void>(`/members/${encodeURIComponent(member.userId)}`, { method: "DELETE" }),
+    onSuccess: () => {
+      void queryClient.invalidateQueries({ queryKey: MEMBERS_QUERY_KEY });
+      onClose();
+    },
+  });
+  return (
+    <ConfirmDialog
+      open
+      title={`Remove ${member.name}?`}
+      confirmLabel="Remove member"
+      pending={remove.isPending}
+      error={remove.error}
+      onConfirm={() => remove.mutate()}
+      onClose={onClose}
+    >
+      <p>
+        {member.email} loses access to this organisation at once. Their past actions stay in the audit log.
+      </p>
+    </ConfirmDialog>
+  );
+}

@@ -1,0 +1,74 @@
+// The console's one way to call /api/v1 from the browser: same-origin JSON with the session cookie,
+// and RFC 9457 problem documents turned into one error type the pages can show.
+
+export interface ProblemFieldError {
+  pointer: string;
+  detail: string;
+}
+
+export class ApiProblem extends Error {
+  readonly status: number;
+  readonly title: string;
+  readonly detail: string | undefined;
+  readonly errors: ProblemFieldError[];
+  readonly retryAfterSeconds: number | undefined;
+
+  constructor(status: number, body: Record<string, unknown>, retryAfter: string | null) {
+    const title = typeof body.title === "string" ? body.title : `Request failed (${status})`;
+    super(typeof body.detail === "string" ? body.detail : title);
+    this.name = "ApiProblem";
+    this.status = status;
+    this.title = title;
+    this.detail = typeof body.detail === "string" ? body.detail : undefined;
+    this.errors = Array.isArray(body.errors) ? (body.errors as ProblemFieldError[]) : [];
+    const seconds = retryAfter === null ? NaN : Number(retryAfter);
+    this.retryAfterSeconds = Number.isFinite(seconds) ? seconds : undefined;
+  }
+}
+
+export interface ApiRequest {
+  method?: "GET" | "POST" | "PATCH" | "DELETE";
+  body?: unknown;
+}
+
+/** Calls `/api/v1${path}`; resolves to the parsed JSON (undefined for 204), rejects with ApiProblem. */
+export async function api<T>(path: string, request: ApiRequest = {}): Promise<T> {
+  const response = await fetch(`/api/v1${path}`, {
+    method: request.method ?? "GET",
+    credentials: "same-origin",
+    headers: request.body === undefined ? { accept: "application/json" } : {
+      accept: "application/json",
+      "content-type": "application/json",
+    },
+    body: request.body === undefined ? undefined : JSON.stringify(request.body),
+  });
+  if (response.status === 204 || response.status === 202) {
+    return undefined as T;
+  }
+  const text = await response.text();
+  const parsed: unknown = text.length > 0 ? safeJson(text) : {};
+  if (!response.ok) {
+    const body = typeof parsed === "object" && parsed !== null ? (parsed as Record<string, unknown>) : {};
+    throw new ApiProblem(response.status, body, response.headers.get("retry-after"));
+  }
+  return parsed as T;
+}
+
+function safeJson(text: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch {
+    return { detail: text.slice(0, 200) };
+  }
+}
+
+/** A sentence for a failed request, for alerts. */
+export function describeProblem(error: unknown): string {
+  if (error instanceof ApiProblem) {
+    const retry = error.retryAfterSeconds === undefined ? "" : ` Try again in ${error.retryAfterSeconds} s.`;
+    return error.detail !== undefined && error.detail !== error.title
+      ? `${error.title}: ${error.detail}${retry}`
+      : `${error.title}${retry}`;
+  }
+  return error instanceof Error ? error.message : "Something went wrong.";
+}

@@ -1,0 +1,19 @@
+import type { Permission } from "@/lib/auth/permissions";
+
+export interface NavItem {
+  href: string;
+  label: string;
+  /** Shown only to members whose role has this permission. */
+  permission?: Permission;
+  /** Shown only when the server runs with the development mail catcher. */
+  devMailOnly?: boolean;
+}
+
+// Only pages that exist are listed; datasets and jobs join here when their pages land.
+export const NAV_ITEMS: readonly NavItem[] = [
+  { href: "/", label: "Overview" },
+  { href: "/keys", label: "API keys", permission: "keys:manage" },
+  { href: "/members", label: "Members", permission: "members:manage" },
+  { href: "/audit", label: "Audit log", permission: "audit:read" },
+  { href: "/dev/mail", label: "Dev mail", permission: "mail:read-dev", devMailOnly: true },
+];
