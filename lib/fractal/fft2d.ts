@@ -6,9 +6,10 @@ export function isPowerOfTwo(n: number): boolean {
   return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
 }
 
-/** In-place 2-D complex FFT of an interleaved (re, im) array of width × height, row-major.
+/** In-place 2-D complex FFT of an interleaved (re, im) array of width × height, row-major. Each pass runs in
+ *  Float64 row buffers, so a Float32 array halves the memory of a large transform at float precision.
  *  `inverse` divides by width·height (fft.js's inverse divides by each length). */
-export function fft2d(data: Float64Array, width: number, height: number, inverse = false): void {
+export function fft2d(data: Float64Array | Float32Array, width: number, height: number, inverse = false): void {
   if (!isPowerOfTwo(width) || !isPowerOfTwo(height)) {
     throw new RangeError(`FFT sizes must be powers of two ≥ 2, got ${width}×${height}`);
   }
