@@ -1,0 +1,309 @@
+// Barnes, Lehman & Mulla (2014), Computers & Geosciences 62:117–127: Priority-Flood with the plain queue (Alg. 2) and the epsilon variant (Alg. 3); slope cells traced outside the priority queue as in Zhou, Sun & Fu (2016), C&G 90:87–96.
+import type { Grid } from "@/lib/raster/grid";
+import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
+
+export interface PriorityFloodOptions {
+  /** raise every filled cell one Float32 step above the cell that floods it, so the result drains
+   *  strictly downhill everywhere (no flats left); default false: flats stay and `resolveFlats` routes them */
+  epsilon?: boolean;
+  /** expand cells on slopes (no open neighbour below them) straight away instead of through the
+   *  priority queue, which cannot change the result (Zhou et al. 2016); default true, false for the
+   *  plain method of Barnes et al. 2014 */
+  traceSlopes?: boolean;
+  /** checked every ABORT_CHECK_INTERVAL cells; an aborted signal throws its reason */
+  signal?: AbortSignal;
+}
+
+export interface PriorityFloodResult {
+  /** cells that hold an elevation (not NaN) */
+  validCells: number;
+  /** cells the flood started from: valid cells on the grid edge or next to nodata */
+  seedCells: number;
+  /** cells whose elevation the fill increased */
+  cellsRaised: number;
+  /** largest increase of one cell, in the DEM's vertical unit */
+  maxRaise: number;
+  /** cells closed through the plain queue (inside depressions) instead of the priority queue */
+  plainQueueCells: number;
+  /** cells expanded on a slope without passing through the priority queue (`traceSlopes`) */
+  slopeTracedCells: number;
+  /** largest number of cells the priority queue held at once (its memory is 8 bytes per entry) */
+  heapPeak: number;
+}
+
+/** Cells between two looks at the abort signal: about a millisecond of work, so cancelling is prompt
+ *  and the check costs nothing measurable. */
+const ABORT_CHECK_INTERVAL = 1 << 20;
+/** First capacity of the growable queues (entries); they double when full. */
+const INITIAL_QUEUE_CAPACITY = 1 << 12;
+
+// One shared view pair for stepping Float32 values bit by bit, allocated once.
+const f32Scratch = new Float32Array(1);
+const i32Scratch = new Int32Array(f32Scratch.buffer);
+
+/** The smallest Float32 strictly greater than the Float32 value `z` (IEEE 754 nextUp): the epsilon
+ *  step of the variant, so the increment is one unit in the last place whatever the elevation. */
+export function nextUpFloat32(z: number): number {
+  f32Scratch[0] = z;
+  const v = f32Scratch[0];
+  if (v !== v || v === Infinity) return v;
+  if (v === 0) {
+    i32Scratch[0] = 1; // +0 and −0 both step to the smallest positive subnormal
+    return f32Scratch[0];
+  }
+  // For IEEE floats of one sign the bit patterns are ordered like the values.
+  i32Scratch[0] += v > 0 ? 1 : -1;
+  return f32Scratch[0];
+}
+
+/** Min-heap of (elevation, cell index) in two parallel typed arrays: no object per cell. */
+class CellHeap {
+  keys = new Float32Array(INITIAL_QUEUE_CAPACITY);
+  cells = new Int32Array(INITIAL_QUEUE_CAPACITY);
+  size = 0;
+  peak = 0;
+
+  push(key: number, cell: number): void {
+    if (this.size === this.keys.length) this.grow();
+    const keys = this.keys, cells = this.cells;
+    let i = this.size++;
+    if (this.size > this.peak) this.peak = this.size;
+    while (i > 0) {
+      const parent = (i - 1) >> 1;
+      const pk = keys[parent];
+      if (pk <= key) break;
+      keys[i] = pk;
+      cells[i] = cells[parent];
+      i = parent;
+    }
+    keys[i] = key;
+    cells[i] = cell;
+  }
+
+  /** removes the lowest entry and returns its cell index; the caller checks `size > 0` first */
+  pop(): number {
+    const keys = this.keys, cells = this.cells;
+    const top = cells[0];
+    const n = --this.size;
+    if (n === 0) return top;
+    const key = keys[n], cell = cells[n];
+    let i = 0;
+    for (;;) {
+      let child = 2 * i + 1;
+      if (child >= n) break;
+      if (child + 1 < n && keys[child + 1] < keys[child]) child++;
+      const ck = keys[child];
+      if (ck >= key) break;
+      keys[i] = ck;
+      cells[i] = cells[child];
+      i = child;
+    }
+    keys[i] = key;
+    cells[i] = cell;
+    return top;
+  }
+
+  private grow(): void {
+    const keys = new Float32Array(this.keys.length * 2);
+    const cells = new Int32Array(this.cells.length * 2);
+    keys.set(this.keys);
+    cells.set(this.cells);
+    this.keys = keys;
+    this.cells = cells;
+  }
+}
+
+/** FIFO of cell indices; it rewinds whenever it runs empty (the plain queue drains fully between
+ *  two priority-queue pops) and shifts or doubles when it reaches the end. */
+class CellQueue {
+  items = new Int32Array(INITIAL_QUEUE_CAPACITY);
+  head = 0;
+  tail = 0;
+
+  push(cell: number): void {
+    if (this.tail === this.items.length) this.makeRoom();
+    this.items[this.tail++] = cell;
+  }
+
+  shift(): number {
+    const cell = this.items[this.head++];
+    if (this.head === this.tail) this.head = this.tail = 0;
+    return cell;
+  }
+
+  private makeRoom(): void {
+    const live = this.tail - this.head;
+    if (this.head >= live) {
+      this.items.copyWithin(0, this.head, this.tail);
+    } else {
+      const items = new Int32Array(this.items.length * 2);
+      items.set(this.items.subarray(this.head, this.tail));
+      this.items = items;
+    }
+    this.head = 0;
+    this.tail = live;
+  }
+}
+
+/** LIFO stack of cell indices that doubles when full. */
+class CellStack {
+  items = new Int32Array(INITIAL_QUEUE_CAPACITY);
+  length = 0;
+
+  push(cell: number): void {
+    if (this.length === this.items.length) {
+      const items = new Int32Array(this.items.length * 2);
+      items.set(this.items);
+      this.items = items;
+    }
+    this.items[this.length++] = cell;
+  }
+
+  pop(): number {
+    return this.items[--this.length];
+  }
+}
+
+/**
+ * Fills every depression of `dem` IN PLACE so that each valid cell has a non-ascending 8-connected
+ * path to the grid edge or to nodata (strictly descending with `epsilon`). NaN cells are nodata and
+ * stay NaN; the edge and nodata are where water leaves the grid.
+ */
+export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOptions = {}): PriorityFloodResult {
+  const { data: z, width: w, height: h } = dem;
+  if (z.length !== w * h) {
+    throw new RangeError(`grid data has ${z.length} cells, expected ${w}×${h} = ${w * h}`);
+  }
+  const epsilon = options.epsilon === true;
+  const signal = options.signal;
+  const n = w * h;
+  const closed = new Uint8Array(n);
+  const heap = new CellHeap();
+  const pit = new CellQueue();
+  const offsets = new Int32Array(8);
+  for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
+
+  // Seeds: every valid edge cell. Every edge cell is closed from the start, so an offset that wraps
+  // across the left or right edge lands on a closed cell and one test `0 <= j < n` guards all reads.
+  let seedCells = 0;
+  let nodataCells = 0;
+  const seedEdge = (i: number) => {
+    closed[i] = 1;
+    const zi = z[i];
+    if (zi === zi) {
+      heap.push(zi, i);
+      seedCells++;
+    }
+  };
+  for (let x = 0; x < w; x++) {
+    seedEdge(x);
+    if (h > 1) seedEdge((h - 1) * w + x);
+  }
+  for (let y = 1; y < h - 1; y++) {
+    seedEdge(y * w);
+    if (w > 1) seedEdge(y * w + w - 1);
+  }
+  for (let i = 0; i < n; i++) {
+    if (z[i] !== z[i]) {
+      closed[i] = 1;
+      nodataCells++;
+    }
+  }
+  // Valid cells next to nodata are seeds too; found from the nodata side so a DEM without holes pays
+  // only the scan above.
+  if (nodataCells > 0) {
+    for (let y = 0; y < h; y++) {
+      for (let x = 0; x < w; x++) {
+        const i = y * w + x;
+        if (z[i] === z[i]) continue;
+        for (let k = 0; k < 8; k++) {
+          const nx = x + D8_DX[k], ny = y + D8_DY[k];
+          if (nx < 0 || ny < 0 || nx >= w || ny >= h) continue;
+          const j = ny * w + nx;
+          if (closed[j] === 0) {
+            closed[j] = 1;
+            heap.push(z[j], j);
+            seedCells++;
+          }
+        }
+      }
+    }
+  }
+
+  const traceSlopes = options.traceSlopes !== false;
+  const slope = new CellStack();
+  let cellsRaised = 0;
+  let maxRaise = 0;
+  let plainQueueCells = 0;
+  let slopeTracedCells = 0;
+  let processed = 0;
+  for (;;) {
+    if ((++processed & (ABORT_CHECK_INTERVAL - 1)) === 0) signal?.throwIfAborted();
+    // Every closed cell not yet expanded bounds the flooded region. A slope cell (no open neighbour
+    // below its level) raises nothing, so it is expanded at once; the others wait for their turn.
+    if (slope.length > 0) {
+      const t = slope.pop();
+      const zt = z[t];
+      const level = epsilon ? nextUpFloat32(zt) : zt;
+      let below = false;
+      for (let k = 0; k < 8; k++) {
+        const j = t + offsets[k];
+        if (j >= 0 && j < n && closed[j] === 0 && z[j] < level) {
+          below = true;
+          break;
+        }
+      }
+      if (below) {
+        heap.push(zt, t);
+        continue;
+      }
+      slopeTracedCells++;
+      for (let k = 0; k < 8; k++) {
+        const j = t + offsets[k];
+        if (j >= 0 && j < n && closed[j] === 0) {
+          closed[j] = 1;
+          slope.push(j);
+        }
+      }
+      continue;
+    }
+    // Plain-queue cells sit at the current flood level (a few Float32 steps above it with epsilon), so
+    // they come before the priority queue, whose keys are never below that level.
+    let c: number;
+    if (pit.tail > 0) c = pit.shift();
+    else if (heap.size > 0) c = heap.pop();
+    else break;
+    const zc = z[c];
+    const level = epsilon ? nextUpFloat32(zc) : zc;
+    for (let k = 0; k < 8; k++) {
+      const j = c + offsets[k];
+      if (j < 0 || j >= n || closed[j] !== 0) continue;
+      closed[j] = 1;
+      const zj = z[j];
+      if (zj < level) {
+        cellsRaised++;
+        if (level - zj > maxRaise) maxRaise = level - zj;
+        z[j] = level;
+        pit.push(j);
+        plainQueueCells++;
+      } else if (zj === zc) {
+        pit.push(j); // already at the flood level: no priority needed
+        plainQueueCells++;
+      } else if (traceSlopes) {
+        slope.push(j);
+      } else {
+        heap.push(zj, j);
+      }
+    }
+  }
+
+  return {
+    validCells: n - nodataCells,
+    seedCells,
+    cellsRaised,
+    maxRaise,
+    plainQueueCells,
+    slopeTracedCells,
+    heapPeak: heap.peak,
+  };
+}

@@ -1,0 +1,159 @@
+import { describe, expect, it } from "vitest";
+import { makeGrid } from "@/lib/raster/grid";
+import { nextUpFloat32, priorityFlood } from "@/lib/hydro/priority-flood";
+import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
+
+/** A Float32 grid from rows written north first. */
+function gridOf(rows: number[][]) {
+  return makeGrid(Float32Array.from(rows.flat()), rows[0].length, rows.length);
+}
+
+/** Deterministic pseudo-random numbers in [0, 1) (mulberry32), so a failing case can be replayed. */
+function random(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = Math.imul(a ^ (a >>> 15), 1 | a);
+    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** A rough random DEM with nodata holes, the shape on which depressions are common. */
+function randomDem(w: number, h: number, seed: number, holeFraction: number) {
+  const rnd = random(seed);
+  const data = new Float32Array(w * h);
+  for (let i = 0; i < data.length; i++) data[i] = rnd() < holeFraction ? NaN : Math.round(rnd() * 1000) / 10;
+  return makeGrid(data, w, h);
+}
+
+/** True when every valid cell that is not on the edge or next to nodata has a neighbour that is lower
+ *  (strict) or not higher (non-strict). */
+function everyInteriorCellHasOutflow(grid: ReturnType<typeof gridOf>, strict: boolean): boolean {
+  const { data: z, width: w, height: h } = grid;
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      const zc = z[y * w + x];
+      if (zc !== zc || x === 0 || y === 0 || x === w - 1 || y === h - 1) continue;
+      let outlet = false, down = false;
+      for (let k = 0; k < 8; k++) {
+        const zn = z[(y + D8_DY[k]) * w + x + D8_DX[k]];
+        if (zn !== zn) outlet = true;
+        else if (strict ? zn < zc : zn <= zc) down = true;
+      }
+      if (!outlet && !down) return false;
+    }
+  }
+  return true;
+}
+
+describe("priorityFlood()", () => {
+  it("fills the 7×5 nested-depression DEM of METHODS.md exactly as listed (derived; Barnes et al. 2014)", () => {
+    const dem = gridOf([
+      [8, 8, 8, 8, 8, 8, 8],
+      [8, 3, 3, 8, 4, 4, 8],
+      [8, 3, 1, 6, 4, 2, 8],
+      [8, 3, 3, 8, 4, 4, 8],
+      [8, 8, 8, 8, 8, 5, 8],
+    ]);
+    const stats = priorityFlood(dem);
+    expect(Array.from(dem.data)).toEqual([
+      [8, 8, 8, 8, 8, 8, 8],
+      [8, 6, 6, 8, 5, 5, 8],
+      [8, 6, 6, 6, 5, 5, 8],
+      [8, 6, 6, 8, 5, 5, 8],
+      [8, 8, 8, 8, 8, 5, 8],
+    ].flat());
+    // 6 cells of the left depression and 6 of the right one are raised; the deepest by 6 − 1 = 5 (derived)
+    expect(stats.cellsRaised).toBe(12);
+    expect(stats.maxRaise).toBe(5);
+    expect(stats.validCells).toBe(35);
+    expect(stats.seedCells).toBe(20); // 2·7 + 2·3 edge cells (derived)
+  });
+
+  it("leaves a DEM without depressions unchanged (derived)", () => {
+    const dem = gridOf([
+      [5, 4, 3],
+      [4, 3, 2],
+      [3, 2, 1],
+    ]);
+    const before = Array.from(dem.data);
+    expect(priorityFlood(dem).cellsRaised).toBe(0);
+    expect(Array.from(dem.data)).toEqual(before);
+  });
+
+  it("treats cells next to nodata as outlets, so a pit beside a hole is not filled (Barnes et al. 2014)", () => {
+    const dem = gridOf([
+      [9, 9, 9, 9, 9],
+      [9, 2, 1, NaN, 9],
+      [9, 9, 9, 9, 9],
+    ]);
+    priorityFlood(dem);
+    expect(Array.from(dem.data.subarray(5, 10))).toEqual([9, 2, 1, NaN, 9]);
+  });
+
+  it("on random DEMs with holes never lowers a cell, keeps nodata and leaves no interior pit (invariant)", () => {
+    for (let seed = 1; seed <= 5; seed++) {
+      const dem = randomDem(37, 23, seed, 0.05);
+      const before = Float32Array.from(dem.data);
+      priorityFlood(dem);
+      for (let i = 0; i < before.length; i++) {
+        if (before[i] !== before[i]) expect(dem.data[i]).toBeNaN();
+        else expect(dem.data[i]).toBeGreaterThanOrEqual(before[i]);
+      }
+      expect(everyInteriorCellHasOutflow(dem, false)).toBe(true);
+    }
+  });
+
+  it("with epsilon leaves a strictly draining surface on random DEMs with holes (Barnes et al. 2014, Algorithm 3)", () => {
+    for (let seed = 11; seed <= 15; seed++) {
+      const dem = randomDem(41, 29, seed, 0.03);
+      const stats = priorityFlood(dem, { epsilon: true });
+      expect(stats.cellsRaised).toBeGreaterThan(0);
+      expect(everyInteriorCellHasOutflow(dem, true)).toBe(true);
+    }
+  });
+
+  it("with epsilon fills the 7×5 DEM to within a few Float32 steps above the exact fill (derived)", () => {
+    const dem = gridOf([
+      [8, 8, 8, 8, 8, 8, 8],
+      [8, 3, 3, 8, 4, 4, 8],
+      [8, 3, 1, 6, 4, 2, 8],
+      [8, 3, 3, 8, 4, 4, 8],
+      [8, 8, 8, 8, 8, 5, 8],
+    ]);
+    priorityFlood(dem, { epsilon: true });
+    // the outlet cell (5, 4) at 5 floods (5, 3) to nextUp(5); the spill cell (3, 2) stays at 6
+    expect(dem.data[3 * 7 + 5]).toBe(nextUpFloat32(5));
+    expect(dem.data[2 * 7 + 3]).toBe(6);
+    for (const i of [8, 9, 15, 16, 22, 23]) {
+      expect(dem.data[i]).toBeGreaterThan(6);
+      expect(dem.data[i] - 6).toBeLessThan(1e-5);
+    }
+  });
+
+  it("on a DEM fully of nodata does nothing and reports no valid cells (derived)", () => {
+    const dem = makeGrid(new Float32Array(12).fill(NaN), 4, 3);
+    const stats = priorityFlood(dem);
+    expect(stats.validCells).toBe(0);
+    expect(stats.seedCells).toBe(0);
+    expect(Array.from(dem.data).every(Number.isNaN)).toBe(true);
+  });
+
+  it("on a 1×1 DEM seeds the one cell and changes nothing (derived)", () => {
+    const dem = makeGrid(Float32Array.of(3), 1, 1);
+    const stats = priorityFlood(dem);
+    expect(stats).toMatchObject({ validCells: 1, seedCells: 1, cellsRaised: 0 });
+    expect(dem.data[0]).toBe(3);
+  });
+});
+
+describe("nextUpFloat32()", () => {
+  it("steps 1 to 1 + 2⁻²³, −1 to −1 + 2⁻²⁴ and 0 to the smallest subnormal 2⁻¹⁴⁹ (IEEE 754 binary32)", () => {
+    expect(nextUpFloat32(1)).toBe(1 + 2 ** -23);
+    expect(nextUpFloat32(-1)).toBe(-1 + 2 ** -24);
+    expect(nextUpFloat32(0)).toBe(2 ** -149);
+    expect(nextUpFloat32(-0)).toBe(2 ** -149);
+    expect(nextUpFloat32(Infinity)).toBe(Infinity);
+  });
+});
