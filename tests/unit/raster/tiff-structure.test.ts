@@ -1,0 +1,71 @@
+import { afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from "vitest";
+import { checkTiffLayout } from "@/lib/raster/tiff-structure";
+import { readDem } from "@/lib/raster/read-geotiff";
+import { RasterError } from "@/lib/raster/errors";
+import { fixture } from "./gdal-reference";
+
+// Hostile files from tests/fixtures/make-hostile-tiffs.py (derived: each breaks one TIFF 6.0 / BigTIFF
+// rule) and unsupported ones written by GDAL. Each must end in a typed error within seconds, print
+// nothing, and never hang or crash.
+const HOSTILE: [file: string, code: RasterError["code"], detail: RegExp][] = [
+  ["huge-declared.tif", "too-large", /100000 × 100000/],
+  ["offset-past-eof.tif", "corrupt", /past the end/],
+  ["truncated-tile.tif", "corrupt", /truncated/],
+  ["short-deflate-stream.tif", "corrupt", /Deflate/],
+  ["ifd-loop.tif", "corrupt", /loops/],
+  ["ifd-loop-bigtiff.tif", "corrupt", /loops/],
+  ["deflate-bomb.tif", "corrupt", /expands past/],
+  ["lzw-no-eoi.tif", "corrupt", /LZW/],
+  ["png-named.tif", "not-tiff", /PNG/],
+  ["old-jpeg.tif", "unsupported", /old-style JPEG/],
+  ["rotated.tif", "rotated", /rotates/],
+  ["crs-user-defined.tif", "crs-unknown", /user-defined.*epsg/],
+  ["crs-absent.tif", "crs-missing", /epsg/],
+  ["int64.tif", "unsupported", /64-bit integers/],
+  ["complex.tif", "unsupported", /complex/],
+  ["f64-predictor2.tif", "unsupported", /predictor/],
+];
+
+describe("readDem() on hostile and unsupported files", () => {
+  let spies: MockInstance[] = [];
+  beforeEach(() => {
+    spies = (["log", "warn", "error", "info", "debug"] as const).map((m) => vi.spyOn(console, m));
+  });
+  afterEach(() => {
+    for (const s of spies) s.mockRestore();
+  });
+
+  it.each(HOSTILE)("%s gives RasterError %s within seconds and prints nothing (derived)", async (file, code, detail) => {
+    const err = await readDem(fixture(`hostile/${file}`)).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(RasterError);
+    expect((err as RasterError).code).toBe(code);
+    expect((err as RasterError).detail).toMatch(detail);
+    for (const s of spies) expect(s).not.toHaveBeenCalled();
+  }, 5000);
+
+  it("WebP (band 1 chosen) is refused as unsupported, naming WebP (geotiff.js has no WebP in Node)", async () => {
+    await expect(readDem(fixture("hostile/webp.tif"), { band: 1 })).rejects.toMatchObject({ code: "unsupported", detail: expect.stringMatching(/WebP/) });
+  }, 5000);
+
+  it("the control file the broken ones derive from reads fine (derived)", async () => {
+    const dem = await readDem(fixture("hostile/control.tif"));
+    expect(dem.elevation.data.every((v) => v === 1)).toBe(true);
+  });
+});
+
+describe("checkTiffLayout()", () => {
+  it("refuses the 100000 × 100000 declaration from the header alone, for any budget below 1e10 cells (derived)", async () => {
+    await expect(checkTiffLayout(fixture("hostile/huge-declared.tif"), 9_999_999_999)).rejects.toMatchObject({ code: "too-large" });
+  });
+
+  it("describes a tiled GDAL file: size, block grid and block count (derived from gdal_translate -co BLOCKXSIZE=32)", async () => {
+    const l = await checkTiffLayout(fixture("variants/f32-DEFLATE-p2-tile.tif"), 1e9);
+    expect([l.width, l.height, l.tiled, l.blockWidth, l.blockHeight, l.blockCount]).toEqual([97, 61, true, 32, 32, 8]);
+    expect([l.compression, l.predictor, l.bitsPerSample[0], l.sampleFormat[0]]).toEqual([8, 2, 32, 3]);
+  });
+
+  it("reads BigTIFF headers and directories (BigTIFF layout, Aware Systems 2008)", async () => {
+    const l = await checkTiffLayout(fixture("variants/bigtiff.tif"), 1e9);
+    expect([l.bigTiff, l.width, l.height]).toEqual([true, 97, 61]);
+  });
+});
