@@ -1,6 +1,7 @@
 // Barnes, Lehman & Mulla (2014), Computers & Geosciences 62:117–127: Priority-Flood with the plain queue (Alg. 2) and the epsilon variant (Alg. 3); slope cells traced outside the priority queue as in Zhou, Sun & Fu (2016), C&G 90:87–96.
 import type { Grid } from "@/lib/raster/grid";
 import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
+import { ABORT_CHECK_CELLS } from "@/lib/hydro/cancellation";
 
 export interface PriorityFloodOptions {
   /** raise every filled cell one Float32 step above the cell that floods it, so the result drains
@@ -10,7 +11,7 @@ export interface PriorityFloodOptions {
    *  priority queue, which cannot change the result (Zhou et al. 2016); default true, false for the
    *  plain method of Barnes et al. 2014 */
   traceSlopes?: boolean;
-  /** checked every ABORT_CHECK_INTERVAL cells; an aborted signal throws its reason */
+  /** checked every ABORT_CHECK_CELLS cells; an aborted signal throws its reason */
   signal?: AbortSignal;
 }
 
@@ -31,9 +32,6 @@ export interface PriorityFloodResult {
   heapPeak: number;
 }
 
-/** Cells between two looks at the abort signal: about a millisecond of work, so cancelling is prompt
- *  and the check costs nothing measurable. */
-const ABORT_CHECK_INTERVAL = 1 << 20;
 /** First capacity of the growable queues (entries); they double when full. */
 const INITIAL_QUEUE_CAPACITY = 1 << 12;
 
@@ -238,7 +236,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   let slopeTracedCells = 0;
   let processed = 0;
   for (;;) {
-    if ((++processed & (ABORT_CHECK_INTERVAL - 1)) === 0) signal?.throwIfAborted();
+    if ((++processed & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
     // Every closed cell not yet expanded bounds the flooded region. A slope cell (no open neighbour
     // below its level) raises nothing, so it is expanded at once; the others wait for their turn.
     if (slope.length > 0) {

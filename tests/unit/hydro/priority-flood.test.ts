@@ -1,35 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { makeGrid } from "@/lib/raster/grid";
+import { makeGrid, type Grid } from "@/lib/raster/grid";
+import { gridOf, randomDem } from "@/tests/unit/hydro/dem-fixtures";
 import { nextUpFloat32, priorityFlood } from "@/lib/hydro/priority-flood";
 import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
 
-/** A Float32 grid from rows written north first. */
-function gridOf(rows: number[][]) {
-  return makeGrid(Float32Array.from(rows.flat()), rows[0].length, rows.length);
-}
-
-/** Deterministic pseudo-random numbers in [0, 1) (mulberry32), so a failing case can be replayed. */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), 1 | a);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-/** A rough random DEM with nodata holes, the shape on which depressions are common. */
-function randomDem(w: number, h: number, seed: number, holeFraction: number) {
-  const rnd = random(seed);
-  const data = new Float32Array(w * h);
-  for (let i = 0; i < data.length; i++) data[i] = rnd() < holeFraction ? NaN : Math.round(rnd() * 1000) / 10;
-  return makeGrid(data, w, h);
-}
-
 /** True when every valid cell that is not on the edge or next to nodata has a neighbour that is lower
  *  (strict) or not higher (non-strict). */
-function everyInteriorCellHasOutflow(grid: ReturnType<typeof gridOf>, strict: boolean): boolean {
+function everyInteriorCellHasOutflow(grid: Grid<Float32Array>, strict: boolean): boolean {
   const { data: z, width: w, height: h } = grid;
   for (let y = 0; y < h; y++) {
     for (let x = 0; x < w; x++) {
@@ -145,6 +122,20 @@ describe("priorityFlood()", () => {
     const stats = priorityFlood(dem);
     expect(stats).toMatchObject({ validCells: 1, seedCells: 1, cellsRaised: 0 });
     expect(dem.data[0]).toBe(3);
+  });
+});
+
+describe("priorityFlood() without slope tracing", () => {
+  it("fills random DEMs with holes to the same surface as with it (invariant; Zhou et al. 2016)", () => {
+    for (let seed = 21; seed <= 25; seed++) {
+      const a = randomDem(53, 31, seed, 0.04);
+      const b = { ...a, data: Float32Array.from(a.data) };
+      const traced = priorityFlood(a);
+      const plain = priorityFlood(b, { traceSlopes: false });
+      expect(traced.slopeTracedCells).toBeGreaterThan(0);
+      expect(plain.slopeTracedCells).toBe(0);
+      expect(Array.from(a.data)).toEqual(Array.from(b.data));
+    }
   });
 });
 

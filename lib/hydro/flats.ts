@@ -1,0 +1,167 @@
+// Barnes, Lehman & Mulla (2014), Computers & Geosciences 62:128–135: flat resolution by a gradient away from higher terrain combined with one towards lower terrain, O(N) breadth-first.
+import type { Grid } from "@/lib/raster/grid";
+import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
+import { ABORT_CHECK_ROWS } from "@/lib/hydro/cancellation";
+
+export interface FlatResolution {
+  /** per cell: 0 off flats and on unresolved flats; on a resolved flat a positive value that falls
+   *  towards its outlets, which D8 follows where elevations are level (elevations are not changed) */
+  increments: Int32Array;
+  /** cells with no lower neighbour that are neither on the grid edge nor next to nodata */
+  flatCells: number;
+  /** flats (8-connected groups of flat cells; adjacent flat cells always share one elevation) */
+  flats: number;
+  /** flats with no cell of equal elevation that drains, so no way out: left with increments 0 */
+  unresolvedFlats: number;
+  /** cells of the unresolved flats */
+  unresolvedCells: number;
+  /** largest increment, for the evidence: about 3× the longest flow path across one flat, in cells */
+  maxIncrement: number;
+}
+
+/**
+ * Finds the flats of `dem` (after depression filling without epsilon) and builds increments that route
+ * each flat to its outlets: 2·(steps to the nearest draining cell of equal elevation) + (largest steps
+ * from higher terrain on this flat − steps from higher terrain). Along a shortest path to an outlet the
+ * first term falls by 2 per step while the second rises by at most 1, so every cell of a resolved flat
+ * has a neighbour with a smaller increment (Barnes et al. 2014, §2).
+ */
+export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortSignal } = {}): FlatResolution {
+  const { data: z, width: w, height: h } = dem;
+  if (z.length !== w * h) {
+    throw new RangeError(`grid data has ${z.length} cells, expected ${w}×${h} = ${w * h}`);
+  }
+  const signal = options.signal;
+  const n = w * h;
+  const increments = new Int32Array(n);
+  const offsets = new Int32Array(8);
+  for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
+
+  // 1. Flat cells: interior, valid, every neighbour valid and not lower (NaN fails `>=`). Edge cells
+  //    and cells next to nodata are never flat: with no lower neighbour they are outlets.
+  //    label: 0 off flats, −1 flat and not yet labelled, then the flat's number 1, 2, …
+  const label = new Int32Array(n);
+  let flatCells = 0;
+  for (let y = 1; y < h - 1; y++) {
+    if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
+    for (let i = y * w + 1, end = y * w + w - 1; i < end; i++) {
+      const zc = z[i];
+      if (zc !== zc) continue;
+      let flat = true;
+      for (let k = 0; k < 8; k++) {
+        if (!(z[i + offsets[k]] >= zc)) {
+          flat = false;
+          break;
+        }
+      }
+      if (flat) {
+        label[i] = -1;
+        flatCells++;
+      }
+    }
+  }
+  const result = { increments, flatCells, flats: 0, unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
+  if (flatCells === 0) return result;
+
+  // 2. Number the flats by breadth-first search; `members` holds each flat's cells contiguously.
+  //    Flat cells are interior, so their eight offsets never leave the grid.
+  const members = new Int32Array(flatCells);
+  let filled = 0;
+  let flats = 0;
+  for (let i = 0; i < n; i++) {
+    if (label[i] !== -1) continue;
+    label[i] = ++flats;
+    members[filled++] = i;
+    for (let head = filled - 1; head < filled; head++) {
+      const c = members[head];
+      for (let k = 0; k < 8; k++) {
+        const j = c + offsets[k];
+        if (label[j] === -1) {
+          label[j] = flats;
+          members[filled++] = j;
+        }
+      }
+    }
+  }
+  signal?.throwIfAborted();
+
+  // 3. Steps from higher terrain, from 1 at flat cells with a higher neighbour, kept in `increments`
+  //    for now; the largest per flat in `maxAway`. A flat without higher neighbours keeps 0 throughout.
+  const queue = new Int32Array(flatCells);
+  const maxAway = new Int32Array(flats + 1);
+  let tail = 0;
+  for (let m = 0; m < flatCells; m++) {
+    const c = members[m], zc = z[c];
+    for (let k = 0; k < 8; k++) {
+      if (z[c + offsets[k]] > zc) {
+        increments[c] = 1;
+        queue[tail++] = c;
+        break;
+      }
+    }
+  }
+  for (let head = 0; head < tail; head++) {
+    const c = queue[head], next = increments[c] + 1;
+    if (next - 1 > maxAway[label[c]]) maxAway[label[c]] = next - 1;
+    for (let k = 0; k < 8; k++) {
+      const j = c + offsets[k];
+      if (label[j] > 0 && increments[j] === 0) {
+        increments[j] = next;
+        queue[tail++] = j;
+      }
+    }
+  }
+  signal?.throwIfAborted();
+
+  // 4. Steps towards lower terrain, level by level from the flat cells beside a draining cell of
+  //    equal elevation (step 1); a visited cell's label turns negative. The final increment replaces
+  //    the away-steps in place.
+  tail = 0;
+  for (let m = 0; m < flatCells; m++) {
+    const c = members[m], zc = z[c];
+    for (let k = 0; k < 8; k++) {
+      const j = c + offsets[k];
+      if (label[j] === 0 && z[j] === zc) {
+        label[c] = -label[c];
+        queue[tail++] = c;
+        break;
+      }
+    }
+  }
+  let maxIncrement = 0;
+  for (let head = 0, step = 1; head < tail; step++) {
+    const levelEnd = tail;
+    for (; head < levelEnd; head++) {
+      const c = queue[head];
+      const flat = -label[c];
+      const away = increments[c];
+      const inc = 2 * step + (away === 0 ? 0 : maxAway[flat] - away);
+      increments[c] = inc;
+      if (inc > maxIncrement) maxIncrement = inc;
+      for (let k = 0; k < 8; k++) {
+        const j = c + offsets[k];
+        if (label[j] > 0) {
+          label[j] = -label[j];
+          queue[tail++] = j;
+        }
+      }
+    }
+  }
+
+  // 5. Flats the search never reached have no way out: clear their away-steps and count them.
+  let unresolvedCells = 0;
+  let unresolvedFlats = 0;
+  let lastFlat = 0;
+  for (let m = 0; m < flatCells; m++) {
+    const c = members[m];
+    if (label[c] > 0) {
+      increments[c] = 0;
+      unresolvedCells++;
+      if (label[c] !== lastFlat) {
+        lastFlat = label[c];
+        unresolvedFlats++;
+      }
+    }
+  }
+  return { ...result, flats, unresolvedFlats, unresolvedCells, maxIncrement };
+}

@@ -1,0 +1,101 @@
+// Flow accumulation over D8 directions (O'Callaghan & Mark 1984) in one topological pass: cells leave a queue once all their donors have (Kahn 1962, Communications of the ACM 5(11):558–562).
+import { isNodata, type Grid } from "@/lib/raster/grid";
+import type { CellGeometry } from "@/lib/raster/cell-geometry";
+import { D8_DX, D8_DY, NO_FLOW } from "@/lib/hydro/neighbours";
+import { ABORT_CHECK_CELLS, ABORT_CHECK_ROWS } from "@/lib/hydro/cancellation";
+
+export interface FlowAccumulation {
+  /** contributing cells of each cell, itself included; 0 on nodata. Uint32: exact to 4.29·10⁹ cells,
+   *  where Float32 stops counting exactly past 2²⁴ ≈ 1.7·10⁷ (a 4096² grid) */
+  cells: Uint32Array;
+  /** contributing area of each cell, itself included, m²; 0 on nodata. Float64: a Float32 sum of
+   *  900 m² cells stops growing near 1.5·10¹⁰ m² (its step there is 1024 m²), well inside one 4096² DEM */
+  areaM2: Float64Array;
+  /** the valid cells, every one after all the cells that drain into it (sources first); walking it
+   *  backwards visits each outlet before its basin */
+  order: Int32Array;
+  /** valid cells that drain nowhere (NO_FLOW): outlets, and pits or flats left unresolved */
+  outlets: number;
+  /** cells that hold an elevation */
+  validCells: number;
+}
+
+/**
+ * Accumulates cells and cell-area-weighted contributing area down the D8 directions. `dem` tells
+ * valid cells from nodata; `geometry` gives the area of each row's cells. Throws a RangeError when a
+ * direction leaves the grid, enters nodata or is not a D8 code, and when directions form a cycle.
+ */
+export function flowAccumulation(
+  directions: Grid<Uint8Array>,
+  dem: Grid<Float32Array>,
+  geometry: CellGeometry,
+  options: { signal?: AbortSignal } = {},
+): FlowAccumulation {
+  const { width: w, height: h } = directions;
+  const dir = directions.data;
+  const z = dem.data;
+  if (dem.width !== w || dem.height !== h || dir.length !== w * h || z.length !== w * h) {
+    throw new RangeError(`directions (${w}×${h}) and DEM (${dem.width}×${dem.height}) must have one size`);
+  }
+  if (geometry.area.length !== h) {
+    throw new RangeError(`cell geometry has ${geometry.area.length} rows, the grid has ${h}`);
+  }
+  const signal = options.signal;
+  const n = w * h;
+  const offsets = new Int32Array(8);
+  for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
+
+  // Donor counts (at most 8, so one byte), checking each direction once; initial cell and area.
+  const donors = new Uint8Array(n);
+  const cells = new Uint32Array(n);
+  const areaM2 = new Float64Array(n);
+  let validCells = 0;
+  let outlets = 0;
+  for (let y = 0; y < h; y++) {
+    if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
+    const cellArea = geometry.area[y];
+    const interiorRow = y > 0 && y < h - 1;
+    for (let x = 0, i = y * w; x < w; x++, i++) {
+      if (isNodata(z[i])) continue;
+      validCells++;
+      cells[i] = 1;
+      areaM2[i] = cellArea;
+      const d = dir[i];
+      if (d === NO_FLOW) {
+        outlets++;
+        continue;
+      }
+      if (d > 7) throw new RangeError(`cell (${x}, ${y}) has direction code ${d}; D8 codes are 0–7 or ${NO_FLOW}`);
+      if (!(interiorRow && x > 0 && x < w - 1)) {
+        const nx = x + D8_DX[d], ny = y + D8_DY[d];
+        if (nx < 0 || ny < 0 || nx >= w || ny >= h) {
+          throw new RangeError(`cell (${x}, ${y}) drains off the grid (direction ${d})`);
+        }
+      }
+      const t = i + offsets[d];
+      if (isNodata(z[t])) throw new RangeError(`cell (${x}, ${y}) drains into nodata (direction ${d})`);
+      donors[t]++;
+    }
+  }
+
+  // Kahn's order: `order` is its own queue; a cell is appended when its last donor has passed on.
+  const order = new Int32Array(validCells);
+  let tail = 0;
+  for (let i = 0; i < n; i++) {
+    if (donors[i] === 0 && cells[i] !== 0) order[tail++] = i;
+  }
+  for (let head = 0; head < tail; head++) {
+    if ((head & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
+    const c = order[head];
+    const d = dir[c];
+    if (d === NO_FLOW) continue;
+    const t = c + offsets[d];
+    cells[t] += cells[c];
+    areaM2[t] += areaM2[c];
+    if (--donors[t] === 0) order[tail++] = t;
+  }
+  if (tail !== validCells) {
+    throw new RangeError(`the directions form a cycle through ${validCells - tail} cells; D8 over a DEM cannot`);
+  }
+  return { cells, areaM2, order, outlets, validCells };
+}

@@ -1,0 +1,70 @@
+import { describe, expect, it } from "vitest";
+import { resolveFlats } from "@/lib/hydro/flats";
+import { priorityFlood } from "@/lib/hydro/priority-flood";
+import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
+import { flatWithOneOutlet, gridOf, randomDem } from "@/tests/unit/hydro/dem-fixtures";
+
+describe("resolveFlats()", () => {
+  // The 9×7 DEM: interior cells x 1..7, y 1..5 level at 5 m, outlet (0, 3) at 5 m in a 9 m rim.
+  // Steps towards lower terrain = max(x, |y − 3|) (8-connected distance to the outlet); steps from higher
+  // terrain = 1 + min(x − 1, 7 − x, y − 1, 5 − y) (distance to the rim), largest 3; increment =
+  // 2·towards + (3 − away) (Barnes et al. 2014, derived for this DEM).
+  it("gives the 9×7 flat with one outlet the increments 2·towards + (max away − away) (derived; Barnes et al. 2014)", () => {
+    const dem = flatWithOneOutlet();
+    const before = Float32Array.from(dem.data);
+    const r = resolveFlats(dem);
+    expect(Array.from(dem.data)).toEqual(Array.from(before));
+    for (let y = 0; y < 7; y++) {
+      for (let x = 0; x < 9; x++) {
+        const interior = x >= 1 && x <= 7 && y >= 1 && y <= 5;
+        const towards = Math.max(x, Math.abs(y - 3));
+        const away = 1 + Math.min(x - 1, 7 - x, y - 1, 5 - y);
+        expect(r.increments[y * 9 + x], `cell (${x}, ${y})`).toBe(interior ? 2 * towards + 3 - away : 0);
+      }
+    }
+    expect(r).toMatchObject({ flatCells: 35, flats: 1, unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 16 });
+  });
+
+  it("gives every cell of a resolved flat a neighbour of equal elevation with a smaller increment (invariant)", () => {
+    for (let seed = 31; seed <= 36; seed++) {
+      const dem = randomDem(40, 30, seed, 0.03);
+      priorityFlood(dem);
+      const { increments, flatCells, unresolvedFlats } = resolveFlats(dem);
+      expect(flatCells).toBeGreaterThan(0);
+      expect(unresolvedFlats).toBe(0);
+      const z = dem.data;
+      for (let y = 1; y < 29; y++) {
+        for (let x = 1; x < 39; x++) {
+          const i = y * 40 + x;
+          if (increments[i] === 0) continue;
+          let down = false;
+          for (let k = 0; k < 8; k++) {
+            const j = (y + D8_DY[k]) * 40 + x + D8_DX[k];
+            if (z[j] === z[i] && increments[j] < increments[i]) down = true;
+          }
+          expect(down, `cell (${x}, ${y})`).toBe(true);
+        }
+      }
+    }
+  });
+
+  it("counts a level pit with no way out as unresolved and leaves it at 0 (Barnes et al. 2014)", () => {
+    const dem = gridOf([
+      [9, 9, 9, 9, 9, 9],
+      [9, 7, 7, 7, 7, 9],
+      [9, 7, 1, 1, 7, 9],
+      [9, 7, 1, 1, 7, 9],
+      [9, 7, 7, 7, 7, 9],
+      [9, 9, 9, 9, 9, 9],
+    ]);
+    const r = resolveFlats(dem);
+    expect(r).toMatchObject({ flatCells: 4, flats: 1, unresolvedFlats: 1, unresolvedCells: 4 });
+    expect(Array.from(r.increments).every((v) => v === 0)).toBe(true);
+  });
+
+  it("finds no flat on a 1×1 DEM, a 2×2 DEM or a DEM fully of nodata (derived: edge cells are never flat)", () => {
+    expect(resolveFlats(gridOf([[4]])).flatCells).toBe(0);
+    expect(resolveFlats(gridOf([[4, 4], [4, 4]])).flatCells).toBe(0);
+    expect(resolveFlats(gridOf([[NaN, NaN, NaN], [NaN, NaN, NaN], [NaN, NaN, NaN]])).flats).toBe(0);
+  });
+});
