@@ -1,5 +1,5 @@
 import { describe, it } from "vitest";
-import { geodesicDistance } from "@/lib/raster/geodesy";
+import { geodesicDistance, geodesicRingArea } from "@/lib/raster/geodesy";
 import { expectClose } from "@/tests/helpers/expect-close";
 
 describe("geodesicDistance()", () => {
@@ -8,5 +8,13 @@ describe("geodesicDistance()", () => {
   });
   it("gives one degree of the equator as a·π/180 (derived)", () => {
     expectClose(geodesicDistance(0, 0, 1, 0), (6378137 * Math.PI) / 180, 1e-6);
+  });
+});
+
+describe("geodesicRingArea()", () => {
+  it("gives 12,308,778,361.469 m² for the geodesic polygon through the corners of the 1°×1° cell at 0–1°N, either winding (METHODS.md, derived)", () => {
+    const ring = Float64Array.of(0, 0, 1, 0, 1, 1, 0, 1, 0, 0);
+    expectClose(geodesicRingArea(ring), 12308778361.469, 0.01);
+    expectClose(geodesicRingArea(Float64Array.of(0, 0, 0, 1, 1, 1, 1, 0)), 12308778361.469, 0.01);
   });
 });
