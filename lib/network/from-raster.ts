@@ -28,6 +28,9 @@ export interface RasterNetworkInput {
   transform: GridTransform;
   /** proj4 definition of the grid's CRS; vertices are cell centres in its units */
   crs: string;
+  /** channel cells, ascending, where a link must end and a new one start although no tributary joins
+   *  (basin outlets chosen by a user); a link ending at one takes the area of that cell */
+  breakCells?: Int32Array;
   signal?: AbortSignal;
 }
 
@@ -63,11 +66,12 @@ function channelInflows(c: number, w: number, h: number, dir: Uint8Array, isChan
  * nodata or stops). Length sums the true step lengths between cell centres (d8StepLengths: exact on
  * projected grids, per-row ellipsoidal widths on geographic grids); drop is elevation at the start
  * minus elevation at the last vertex; area is the contributing area of the last cell before the
- * junction (the link's own basin, without the other inflows), or of the outlet cell.
+ * junction (the link's own basin, without the other inflows), or of the outlet or break cell.
  * Memory: two Int32 entries per link plus the link paths; nothing per cell.
  */
 export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
   const { directions, areaM2, thresholdM2, elevation, cellGeometry, transform, crs, signal } = input;
+  const breaks = input.breakCells ?? new Int32Array(0);
   const { data: dir, width: w, height: h } = directions;
   const n = w * h;
   if (areaM2.length !== n || elevation.length !== n) {
@@ -88,25 +92,29 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
     return isChannel(d) ? d : -1;
   };
 
+  for (let i = 1; i < breaks.length; i++) {
+    if (!(breaks[i] > breaks[i - 1])) throw new RangeError("breakCells must be ascending without repeats");
+  }
+
   // Pass 1: link starts in row-major order, so the list is sorted and a start is found by bisection.
-  let starts = new Int32Array(1024), count = 0;
-  for (let c = 0; c < n; c++) {
+  // A start is a break only (not a source or junction) when exactly one channel flows into it.
+  let starts = new Int32Array(1024), breakOnly = new Uint8Array(1024), count = 0;
+  for (let c = 0, b = 0; c < n; c++) {
+    while (b < breaks.length && breaks[b] < c) b++;
     if (!isChannel(c)) continue;
-    if (channelInflows(c, w, h, dir, isChannel) !== 1) {
-      if (count === starts.length) { const grown = new Int32Array(count * 2); grown.set(starts); starts = grown; }
+    const isBreak = b < breaks.length && breaks[b] === c;
+    const inflows = channelInflows(c, w, h, dir, isChannel);
+    if (inflows !== 1 || isBreak) {
+      if (count === starts.length) {
+        const grown = new Int32Array(count * 2); grown.set(starts); starts = grown;
+        const grownFlags = new Uint8Array(count * 2); grownFlags.set(breakOnly); breakOnly = grownFlags;
+      }
+      breakOnly[count] = inflows === 1 ? 1 : 0;
       starts[count++] = c;
     }
   }
   const startCell = starts.slice(0, count);
-  const linkAt = (c: number): number => {
-    let lo = 0, hi = count - 1;
-    while (lo <= hi) {
-      const mid = (lo + hi) >> 1, v = startCell[mid];
-      if (v === c) return mid;
-      if (v < c) lo = mid + 1; else hi = mid - 1;
-    }
-    return -1;
-  };
+  const linkAt = (c: number): number => bisect(startCell, c);
 
   // Pass 2: walk each link down to its end.
   const endCell = new Int32Array(count);
@@ -127,7 +135,7 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
       lengthM += d8StepLengths(cellGeometry, y, steps)[dir[c]];
       const j = linkAt(d);
       if (j >= 0) {
-        areaCell = c;
+        areaCell = breakOnly[j] ? d : c;
         downstream = j;
         const dx = d % w, dy = (d - dx) / w;
         vertices.push(originX + (dx + 0.5) * pixelSizeX, originY - (dy + 0.5) * pixelSizeY);
@@ -147,6 +155,17 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
     };
   }
   return { network: { links, crs }, startCell, endCell };
+}
+
+/** Index of `value` in the ascending array `sorted`, or −1. */
+function bisect(sorted: Int32Array, value: number): number {
+  let lo = 0, hi = sorted.length - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >> 1, v = sorted[mid];
+    if (v === value) return mid;
+    if (v < value) lo = mid + 1; else hi = mid - 1;
+  }
+  return -1;
 }
 
 /** Writes `values[link]` into `out` on every cell of each link; a junction cell takes the value of

@@ -40,3 +40,17 @@ describe("networkFromRaster()", () => {
     expect(() => networkFromRaster({ ...Y_GRID, thresholdM2: 0 })).toThrow(RangeError);
   });
 });
+
+describe("networkFromRaster() with break cells", () => {
+  it("ends a link at a chosen outlet cell and gives it that cell's area (derived by hand)", () => {
+    // break the left source's link at cell (1, 1) = 6, between (1, 0) and the junction (2, 2)
+    const plain = networkFromRaster({ ...Y_GRID, thresholdM2: 100 });
+    const broken = networkFromRaster({ ...Y_GRID, thresholdM2: 100, breakCells: Int32Array.of(6) });
+    expect(broken.network.links).toHaveLength(plain.network.links.length + 1);
+    const upper = broken.network.links.find((l) => l.path[0] === 1015 && l.path[1] === 1995)!;
+    expect(upper.lengthM).toBe(10); // (1,0) → (1,1), then the break
+    expect(upper.areaM2).toBe(200); // the area of the break cell, the basin's outlet
+    const lower = broken.network.links[upper.downstream];
+    expectClose(lower.lengthM, Math.SQRT2 * 10, 1e-12);
+  });
+});
