@@ -106,7 +106,7 @@ export function AuditPanel() {
         <div className="grid items-start gap-3 md:grid-cols-[1fr_1fr_10rem_10rem_auto]">
           <TextField
             label="Action"
-            placeholder="e.g. key.created"
+            placeholder="e.g. api_key.created"
             value={draft.action}
             onChange={(e) => setDraft({ ...draft, action: e.target.value })}
             error={errors.action}
