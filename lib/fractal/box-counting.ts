@@ -2,7 +2,7 @@
 // side s meet the set, N(s) ∝ s^−D; for polylines the boxes a segment crosses by Amanatides & Woo (1987) traversal.
 import type { Grid } from "@/lib/raster/grid";
 import { WGS84_A } from "@/lib/raster/wgs84";
-import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit } from "./loglog-fit";
+import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit, type ScalingRange } from "./loglog-fit";
 import { checkPolylines, medianSegmentLength, type Polylines } from "./polylines";
 
 /** Fewest boxes across the set's larger extent at the coarsest side: at 1–2 boxes the count only sees the bbox. */
@@ -19,7 +19,7 @@ export interface BoxCountingResult {
   dimension: Derived;
 }
 
-function result(sides: number[], counts: number[], unit: string, range: { min: number; max: number } | undefined,
+function result(sides: number[], counts: number[], unit: string, range: ScalingRange | undefined,
   projection?: string): BoxCountingResult {
   const fit = fitLogLog(sides, counts, { unit, range });
   return {
@@ -35,7 +35,7 @@ export interface MaskBoxCountingOptions {
   sides?: number[];
   /** cell size in metres; sides are then reported in metres, else in cells */
   cellSize?: number;
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 /** Counts s×s boxes (anchored at the grid's top-left cell) that hold at least one non-zero cell. */
@@ -67,7 +67,7 @@ export interface LineBoxCountingOptions {
   /** box sides in metres; default powers of two times the median segment length, up to a quarter of the
    *  larger extent */
   sides?: number[];
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 export const LONLAT_PROJECTION =

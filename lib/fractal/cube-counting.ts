@@ -2,7 +2,7 @@
 // s×s block counts n = l − k + 1 boxes between the box indices of its min and max; N(s) ∝ s^−D.
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
-import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit } from "./loglog-fit";
+import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit, type ScalingRange } from "./loglog-fit";
 
 /** How the box height relates to the box side; D depends on it (Panigrahy et al. 2017, Entropy 19(10):534).
  *  "true-units": box height = box side in metres (z in metres).
@@ -15,7 +15,7 @@ export const MIN_BLOCKS_PER_SIDE = 4;
 export interface CubeCountingOptions {
   normalisation?: VerticalNormalisation;
   /** user scaling range in metres (box side) */
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 export interface CubeCountingResult {

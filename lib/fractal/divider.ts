@@ -1,6 +1,6 @@
 // Divider (ruler) method: Richardson (1961), General Systems Yearbook 6:139–187, as analysed by Mandelbrot (1967),
 // Science 156:636–638 — walk a fixed chord G along the line; L(G) = n(G)·G ∝ G^(1−D).
-import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit } from "./loglog-fit";
+import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit, type ScalingRange } from "./loglog-fit";
 import { checkPolylines, medianSegmentLength, pointDistance, type Polylines } from "./polylines";
 
 /** Default number of log-spaced rulers. */
@@ -20,7 +20,7 @@ export interface DividerOptions {
    *  the total polyline length */
   rulers?: number[];
   /** user scaling range in metres */
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 export interface DividerResult {

@@ -35,7 +35,7 @@ export interface LogLogFit {
   points: LogLogPoint[];
   range: { min: number; max: number; unit: string };
   /** how the range was chosen */
-  rangeSource: "automatic" | "user";
+  rangeSource: "automatic" | "user" | "all";
   /** the automatic rule, stated; or the user range */
   rule: string;
   /** false when no window met the automatic criterion (all points fitted) */
@@ -54,9 +54,11 @@ export interface LogLogFit {
 export interface LogLogOptions {
   /** unit of the scales, reported in `range.unit` */
   unit: string;
-  /** user scaling range in the scale's unit; overrides the automatic rule */
-  range?: { min: number; max: number };
+  /** user scaling range in the scale's unit, or "all" to fit every usable point; overrides the automatic rule */
+  range?: ScalingRange;
 }
+
+export type ScalingRange = { min: number; max: number } | "all";
 
 /** A dimension (or exponent) derived as offset + factor · slope, with its SE and 95 % CI. */
 export interface Derived {
@@ -95,7 +97,12 @@ export function fitLogLog(scales: ArrayLike<number>, measures: ArrayLike<number>
   let rangeSource: LogLogFit["rangeSource"] = "automatic";
   let rule = SCALING_RANGE_RULE;
   let criterionMet = true;
-  if (options.range) {
+  if (options.range === "all") {
+    if (lx.length < 2) throw new RangeError(`a log–log fit needs at least 2 usable points, got ${lx.length}`);
+    best = fitWindow(lx, ly, 0, lx.length - 1);
+    rangeSource = "all";
+    rule = "every usable point";
+  } else if (options.range) {
     const { min, max } = options.range;
     if (!(min > 0) || !(max > min)) throw new RangeError(`scaling range must satisfy 0 < min < max, got ${min}–${max}`);
     const inside = ok.map((i, k) => (scales[i] >= min && scales[i] <= max ? k : -1)).filter((k) => k >= 0);

@@ -3,7 +3,7 @@
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { fft2d } from "./fft2d";
-import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit } from "./loglog-fit";
+import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit, type ScalingRange } from "./loglog-fit";
 
 /** Default number of log-spaced radial bins between the lowest frequency and the Nyquist frequency. */
 export const DEFAULT_RADIAL_BINS = 20;
@@ -11,7 +11,7 @@ export const DEFAULT_RADIAL_BINS = 20;
 export interface PowerSpectrumOptions {
   bins?: number;
   /** user scaling range in metres (wavelength) */
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 export interface PowerSpectrumResult {

@@ -2,14 +2,14 @@
 // triangles joining the corners of each s×s square to its centre (mean of the corners) scales as s^(2−D).
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
-import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit } from "./loglog-fit";
+import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit, type ScalingRange } from "./loglog-fit";
 
 /** Fewest squares along the shorter side at the coarsest step. */
 export const MIN_SQUARES_PER_SIDE = 4;
 
 export interface TriangularPrismOptions {
   /** user scaling range in metres (square side) */
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 export interface TriangularPrismResult {

@@ -2,7 +2,7 @@
 // γ(h) = ½E[(z(x+h) − z(x))²] ∝ h^(2H), D = 3 − H, in four directions with true lag distances.
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
-import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit } from "./loglog-fit";
+import { deriveFromSlope, fitLogLog, type Derived, type LogLogFit, type ScalingRange } from "./loglog-fit";
 
 /** Directions as (column step, row step); rows go south, so (1, 1) runs NW→SE. */
 export const VARIOGRAM_DIRECTIONS = [
@@ -25,7 +25,7 @@ export interface VariogramOptions {
   lagCount?: number;
   maxLagFraction?: number;
   /** user scaling range in metres (lag distance) */
-  range?: { min: number; max: number };
+  range?: ScalingRange;
 }
 
 export interface VariogramSeries {
