@@ -1,0 +1,7 @@
+// GET /api/v1/audit/verify — recompute the organisation's audit hash chain and report the first broken row
+import { json, withAuth } from "@/lib/api/handler";
+import { verifyOrgAudit } from "@/lib/audit/log";
+
+export const runtime = "nodejs";
+
+export const GET = withAuth(async ({ principal, db }) => json(await verifyOrgAudit(db, principal.org.id)), { permission: "audit:read" });

@@ -1,0 +1,9 @@
+// GET /api/v1/openapi.json — the OpenAPI 3.1 document, generated from the zod schemas
+import { json, withPublic } from "@/lib/api/handler";
+import { buildOpenApiDocument } from "@/openapi/registry";
+
+export const runtime = "nodejs";
+
+const document = buildOpenApiDocument();
+
+export const GET = withPublic(async () => json(document));

@@ -1,0 +1,30 @@
+// The application's database handle: one pg pool as the app role (no UPDATE/DELETE on audit rows),
+// Drizzle with snake_case column mapping.
+import "server-only";
+import { drizzle, type NodePgQueryResultHKT } from "drizzle-orm/node-postgres";
+import type { PgDatabase } from "drizzle-orm/pg-core";
+import pg from "pg";
+import { env } from "@/lib/env";
+import * as schema from "@/db/schema";
+
+/** A database handle or an open transaction: services accept either, so callers can compose them atomically. */
+export type Db = PgDatabase<NodePgQueryResultHKT, typeof schema>;
+
+export const makeDb = (pool: pg.Pool): Db => drizzle(pool, { schema, casing: "snake_case" });
+
+// Next can evaluate this module more than once per process (route bundles); keep one pool per process.
+const holder = globalThis as unknown as { __rillscaleDb?: { pool: pg.Pool; db: Db } };
+
+export function db(): Db {
+  if (!holder.__rillscaleDb) {
+    const pool = new pg.Pool({ connectionString: env().DATABASE_URL, max: 10 });
+    pool.on("error", (e) => console.error("database pool error:", e.message));
+    holder.__rillscaleDb = { pool, db: makeDb(pool) };
+  }
+  return holder.__rillscaleDb.db;
+}
+
+export function pool(): pg.Pool {
+  db();
+  return holder.__rillscaleDb!.pool;
+}

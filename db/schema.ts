@@ -1,0 +1,139 @@
+// Drizzle schema: one table per entity, camelCase fields mapped to snake_case columns (casing: "snake_case"
+// in db/client.ts and drizzle.config.ts). Migrations in drizzle/ are generated from this file.
+import { sql } from "drizzle-orm";
+import { bigint, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uuid } from "drizzle-orm/pg-core";
+
+const ts = () => timestamp({ withTimezone: true, mode: "date" });
+
+export const memberRole = pgEnum("member_role", ["admin", "analyst", "auditor"]);
+
+export const organisations = pgTable("organisations", {
+  id: uuid().primaryKey().defaultRandom(),
+  name: text().notNull(),
+  slug: text().notNull().unique(),
+  createdAt: ts().notNull().defaultNow(),
+});
+
+export const users = pgTable("users", {
+  id: uuid().primaryKey().defaultRandom(),
+  email: text().notNull().unique(), // stored lower-cased
+  name: text().notNull(),
+  passwordHash: text().notNull(),
+  createdAt: ts().notNull().defaultNow(),
+  passwordChangedAt: ts().notNull().defaultNow(),
+});
+
+export const memberships = pgTable(
+  "memberships",
+  {
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    userId: uuid().notNull().references(() => users.id, { onDelete: "cascade" }),
+    role: memberRole().notNull(),
+    joinedAt: ts().notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.orgId, t.userId] }), index().on(t.userId)],
+);
+
+/** One row per signed-in browser; the cookie's JWT carries its id, so deleting/revoking the row signs it out. */
+export const sessions = pgTable(
+  "sessions",
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    userId: uuid().notNull().references(() => users.id, { onDelete: "cascade" }),
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    createdAt: ts().notNull().defaultNow(),
+    expiresAt: ts().notNull(),
+    revokedAt: ts(),
+    ip: text(),
+    userAgent: text(),
+  },
+  (t) => [index().on(t.userId)],
+);
+
+/** Only HMAC-SHA-256(pepper, secret) is stored; `previousSecretHash` keeps working until `graceUntil`. */
+export const apiKeys = pgTable(
+  "api_keys",
+  {
+    id: text().primaryKey(), // the non-secret key id embedded in the secret
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    name: text().notNull(),
+    scopes: text().array().notNull(),
+    secretHash: text().notNull(),
+    previousSecretHash: text(),
+    graceUntil: ts(),
+    rotatedAt: ts(),
+    createdBy: uuid().references(() => users.id, { onDelete: "set null" }),
+    createdAt: ts().notNull().defaultNow(),
+    expiresAt: ts(),
+    lastUsedAt: ts(),
+    revokedAt: ts(),
+  },
+  (t) => [index().on(t.orgId)],
+);
+
+export const invitations = pgTable(
+  "invitations",
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    email: text().notNull(),
+    role: memberRole().notNull(),
+    tokenHash: text().notNull().unique(),
+    invitedBy: uuid().references(() => users.id, { onDelete: "set null" }),
+    createdAt: ts().notNull().defaultNow(),
+    expiresAt: ts().notNull(),
+    acceptedAt: ts(),
+  },
+  (t) => [index().on(t.orgId)],
+);
+
+export const passwordResets = pgTable("password_resets", {
+  id: uuid().primaryKey().defaultRandom(),
+  userId: uuid().notNull().references(() => users.id, { onDelete: "cascade" }),
+  tokenHash: text().notNull().unique(),
+  createdAt: ts().notNull().defaultNow(),
+  expiresAt: ts().notNull(),
+  usedAt: ts(),
+});
+
+/** Failed sign-ins counted per bucket ("account:<email>" or "ip:<address>") inside a fixed window. */
+export const loginThrottles = pgTable("login_throttles", {
+  bucket: text().primaryKey(),
+  failures: integer().notNull().default(0),
+  windowStartedAt: ts().notNull().defaultNow(),
+  lockedUntil: ts(),
+});
+
+/**
+ * Append-only: the app role may only INSERT and SELECT, a trigger refuses UPDATE/DELETE/TRUNCATE
+ * (drizzle/0001_*.sql), and each row's hash covers the previous row's hash of the same organisation.
+ */
+export const auditEvents = pgTable(
+  "audit_events",
+  {
+    id: bigint({ mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
+    orgId: uuid().references(() => organisations.id, { onDelete: "restrict" }),
+    at: ts().notNull(),
+    action: text().notNull(),
+    actorKind: text().notNull(),
+    actorId: text(),
+    actorLabel: text().notNull(),
+    target: text(),
+    ip: text(),
+    details: jsonb().$type<Record<string, unknown>>().notNull().default(sql`'{}'::jsonb`),
+    prevHash: text().notNull(),
+    hash: text().notNull(),
+  },
+  (t) => [index().on(t.orgId, t.id), index().on(t.orgId, t.action)],
+);
+
+export type Organisation = typeof organisations.$inferSelect;
+export type User = typeof users.$inferSelect;
+export type Membership = typeof memberships.$inferSelect;
+export type Session = typeof sessions.$inferSelect;
+export type ApiKeyRow = typeof apiKeys.$inferSelect;
+export type InvitationRow = typeof invitations.$inferSelect;
+export type PasswordReset = typeof passwordResets.$inferSelect;
+export type LoginThrottle = typeof loginThrottles.$inferSelect;
+export type AuditEventRow = typeof auditEvents.$inferSelect;
+export type NewAuditEvent = typeof auditEvents.$inferInsert;
