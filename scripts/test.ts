@@ -8,7 +8,7 @@ const root = path.resolve(import.meta.dirname, "..");
 const resultsDir = path.join(root, ".data", "test-results");
 mkdirSync(resultsDir, { recursive: true });
 
-function run(cmd: string, args: string[], env: NodeJS.ProcessEnv = {}): number {
+function run(cmd: string, args: string[], env: Record<string, string> = {}): number {
   const r = spawnSync(cmd, args, { cwd: root, stdio: "inherit", env: { ...process.env, ...env } });
   return r.status ?? 1;
 }
