@@ -8,6 +8,7 @@ export type VectorErrorCode =
   | "not_feature_collection"
   | "not_lines"
   | "bad_geometry"
+  | "bad_attribute"
   | "crs_missing"
   | "crs_unknown"
   | "unsafe_zip_entry"
