@@ -4,6 +4,9 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, describe, expect, test } from "vitest";
 import yazl from "yazl";
+import { open } from "shapefile";
+import { divider } from "@/lib/fractal/divider";
+import { readGeoJson } from "@/lib/vector/read-geojson";
 import { readShapefile, readShapefileZip } from "@/lib/vector/read-shapefile";
 import { resolveLinesCrs } from "@/lib/vector/resolve-crs";
 import { VectorError } from "@/lib/vector/vector-error";
@@ -35,6 +38,23 @@ describe("readShapefile()", () => {
     const e = await refusal(readShapefile({ shp: readFileSync(`${LUX}.shp`), dbf: readFileSync(`${LUX}.dbf`), prj: readFileSync(`${LUX}.prj`, "utf8") }));
     expect(e.code).toBe("not_lines");
     expect(e.detail).toMatch(/polygons \(shape type 5\), not lines/);
+  });
+
+  test("the boundaries of lux.shp converted to lines give a divider dimension between 1 and 1.3 (sanity range, common practice)", async () => {
+    needLux();
+    const source = await open(readFileSync(`${LUX}.shp`), null);
+    const features: unknown[] = [];
+    for (let r = await source.read(); !r.done; r = await source.read()) {
+      const g = r.value.geometry!;
+      const rings = g.type === "Polygon" ? (g.coordinates as number[][][]) : (g.coordinates as number[][][][]).flat();
+      features.push({ type: "Feature", properties: r.value.properties, geometry: { type: "MultiLineString", coordinates: rings } });
+    }
+    const lines = readGeoJson({ type: "FeatureCollection", features });
+    expect(lines.lines).toHaveLength(12); // the 12 cantons, one ring each
+    expect(resolveLinesCrs({ kind: "prj", wkt: readFileSync(`${LUX}.prj`, "utf8") }, lines.lines).geographic).toBe(true);
+    const d = divider({ lines: lines.lines, coordinates: "lonlat" });
+    expect(d.dimension.value).toBeGreaterThan(1);
+    expect(d.dimension.value).toBeLessThan(1.3);
   });
 
   test("reads a zipped PolyLine Shapefile written by GDAL, with its .prj resolved by proj4 (derived)", async () => {
