@@ -6,7 +6,8 @@ const root = fileURLToPath(new URL(".", import.meta.url));
 // Three suites, one runner: unit (lib, no DB), integration (API + real PostgreSQL + worker),
 // e2e (a started server driven by Debian's Chromium). scripts/test.ts runs them all.
 export default defineConfig({
-  resolve: { alias: { "@": root } },
+  // `server-only` throws outside a react-server bundle; tests exercise server modules directly, so it is a no-op here.
+  resolve: { alias: { "@": root, "server-only": `${root}node_modules/server-only/empty.js` } },
   test: {
     projects: [
       {

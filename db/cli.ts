@@ -1,4 +1,4 @@
-// Local database commands: `npx tsx db/cli.ts start|stop|status`.
+// Local database commands: `npm run db -- start|stop|status`.
 import { clusterPort, ensureCluster, stopCluster } from "@/db/cluster";
 
 const command = process.argv[2];
@@ -12,6 +12,6 @@ if (command === "start") {
   const info = await ensureCluster();
   console.log(`PostgreSQL on 127.0.0.1:${clusterPort()}${info.startedNow ? " (was stopped; started it)" : ""}`);
 } else {
-  console.error("usage: npx tsx db/cli.ts start|stop|status");
+  console.error("usage: npm run db -- start|stop|status");
   process.exit(2);
 }

@@ -110,7 +110,7 @@ function isRunning(root: string): boolean {
 }
 
 export function startCommandHint(): string {
-  return "npx tsx db/cli.ts start";
+  return "npm run db -- start";
 }
 
 /** Connection URL for a role and database on the local cluster. */

@@ -27,7 +27,11 @@ export function canonicalJson(value: unknown): string {
 }
 
 export function eventHash(prevHash: string, e: ChainedFields): string {
-  const body = canonicalJson({ ...e, at: e.at.toISOString() });
+  // Only the chained fields: a stored row also carries its id and hashes, which are not part of the content.
+  const body = canonicalJson({
+    orgId: e.orgId, at: e.at.toISOString(), action: e.action, actorKind: e.actorKind, actorId: e.actorId,
+    actorLabel: e.actorLabel, target: e.target, ip: e.ip, details: e.details,
+  });
   return createHash("sha256").update(prevHash).update("\n").update(body).digest("hex");
 }
 
