@@ -1,0 +1,191 @@
+// Local-disk object store. Atomic replace by write-to-temp + fsync + rename(2) in the same directory: POSIX
+// (IEEE Std 1003.1-2017, rename()) makes the new name appear at once, and open readers keep the old inode.
+import { randomUUID } from "node:crypto";
+import { constants as fsConstants, type Stats } from "node:fs";
+import { copyFile, mkdir, open, opendir, rename, rmdir, stat, unlink, type FileHandle } from "node:fs/promises";
+import path from "node:path";
+import { assertKeyPrefix, assertObjectKey } from "@/lib/storage/keys";
+import {
+  bodyToReadable, ObjectNotFoundError, resolveRange,
+  type ByteRange, type ObjectBody, type ObjectInfo, type ObjectRead, type ObjectStore,
+} from "@/lib/storage/object-store";
+
+export interface LocalDiskStoreOptions {
+  /** Directory that holds the objects (created when missing); resolved against the caller's working directory. */
+  root: string;
+}
+
+/** Codes that mean "nothing stored under this key" (a segment of the key is a file, or the key is a directory). */
+const MISSING = new Set(["ENOENT", "ENOTDIR", "EISDIR"]);
+
+function isMissing(err: unknown): boolean {
+  return MISSING.has((err as NodeJS.ErrnoException).code ?? "");
+}
+
+/** inode-size-mtime, as web servers derive validators for files: a put always makes a new inode. */
+function etagOf(s: Stats): string {
+  return `"${s.ino.toString(16)}-${s.size.toString(16)}-${Math.floor(s.mtimeMs).toString(16)}"`;
+}
+
+export class LocalDiskStore implements ObjectStore {
+  readonly backend = "local" as const;
+  readonly root: string;
+
+  constructor(options: LocalDiskStoreOptions) {
+    if (!options.root) throw new RangeError("local object store needs a root directory");
+    this.root = path.resolve(options.root);
+  }
+
+  private pathOf(key: string): string {
+    assertObjectKey(key);
+    return path.join(this.root, ...key.split("/"));
+  }
+
+  put(key: string, body: ObjectBody): Promise<ObjectInfo> {
+    const source = bodyToReadable(body);
+    return this.writeAtomically(key, async (handle) => {
+      // One awaited write per chunk: backpressure without a second stream, and the handle stays ours to sync.
+      for await (const chunk of source) await writeFully(handle, typeof chunk === "string" ? Buffer.from(chunk) : (chunk as Uint8Array));
+    }, () => source.destroy());
+  }
+
+  putFile(key: string, localPath: string): Promise<ObjectInfo> {
+    return this.writeAtomically(key, async (_handle, tempPath) => {
+      await copyFile(localPath, tempPath); // copy_file_range/reflink where the filesystem has it
+    });
+  }
+
+  /** Fills a fresh temp file beside the target, syncs it, renames it over the target and syncs the directory
+   *  (so the rename survives a crash); any failure removes the temp file and leaves the old object in place. */
+  private async writeAtomically(
+    key: string,
+    fill: (handle: FileHandle, tempPath: string) => Promise<void>,
+    onEarlyFailure?: () => void,
+  ): Promise<ObjectInfo> {
+    let target: string;
+    try {
+      target = this.pathOf(key);
+    } catch (err) {
+      onEarlyFailure?.();
+      throw err;
+    }
+    const dir = path.dirname(target);
+    const tempPath = path.join(dir, `.${path.basename(target)}.${randomUUID()}.tmp`);
+    let handle: FileHandle | undefined;
+    try {
+      await mkdir(dir, { recursive: true });
+      handle = await open(tempPath, fsConstants.O_CREAT | fsConstants.O_EXCL | fsConstants.O_WRONLY, 0o644);
+      await fill(handle, tempPath);
+      await handle.sync();
+      const s = await handle.stat();
+      await handle.close();
+      handle = undefined;
+      await rename(tempPath, target);
+      await syncDirectory(dir);
+      return { size: s.size, etag: etagOf(s) };
+    } catch (err) {
+      onEarlyFailure?.();
+      await handle?.close().catch(() => undefined);
+      await unlink(tempPath).catch(() => undefined);
+      throw err;
+    }
+  }
+
+  async get(key: string, options: { range?: ByteRange } = {}): Promise<ObjectRead> {
+    const file = this.pathOf(key);
+    let handle: FileHandle;
+    try {
+      handle = await open(file, "r");
+    } catch (err) {
+      if (isMissing(err)) throw new ObjectNotFoundError(key);
+      throw err;
+    }
+    try {
+      // Size and bytes come from the same open inode, so a concurrent replace cannot mix two versions.
+      const s = await handle.stat();
+      if (!s.isFile()) throw new ObjectNotFoundError(key);
+      const info: ObjectInfo = { size: s.size, etag: etagOf(s) };
+      if (!options.range) return { body: handle.createReadStream(), info };
+      const range = resolveRange(key, s.size, options.range);
+      return { body: handle.createReadStream({ start: range.start, end: range.end }), info, range };
+    } catch (err) {
+      await handle.close();
+      throw err;
+    }
+  }
+
+  async head(key: string): Promise<ObjectInfo | null> {
+    try {
+      const s = await stat(this.pathOf(key));
+      return s.isFile() ? { size: s.size, etag: etagOf(s) } : null;
+    } catch (err) {
+      if (isMissing(err)) return null;
+      throw err;
+    }
+  }
+
+  async exists(key: string): Promise<boolean> {
+    return (await this.head(key)) !== null;
+  }
+
+  async delete(key: string): Promise<void> {
+    const file = this.pathOf(key);
+    try {
+      await unlink(file);
+    } catch (err) {
+      if (isMissing(err)) return;
+      throw err;
+    }
+    // Prune directories the delete emptied, never the root; stops at the first non-empty one.
+    for (let dir = path.dirname(file); dir.startsWith(this.root + path.sep); dir = path.dirname(dir)) {
+      try {
+        await rmdir(dir);
+      } catch {
+        break;
+      }
+    }
+  }
+
+  async *list(prefix: string): AsyncIterable<string> {
+    assertKeyPrefix(prefix);
+    const slash = prefix.lastIndexOf("/");
+    const base = slash < 0 ? "" : prefix.slice(0, slash);
+    yield* this.walk(base, prefix);
+  }
+
+  private async *walk(relDir: string, prefix: string): AsyncIterable<string> {
+    let dir;
+    try {
+      dir = await opendir(relDir ? path.join(this.root, ...relDir.split("/")) : this.root);
+    } catch (err) {
+      if (isMissing(err)) return;
+      throw err;
+    }
+    for await (const entry of dir) {
+      if (entry.name.startsWith(".")) continue; // temp files of writes in progress
+      const key = relDir ? `${relDir}/${entry.name}` : entry.name;
+      if (entry.isDirectory()) {
+        if (key.startsWith(prefix) || prefix.startsWith(`${key}/`)) yield* this.walk(key, prefix);
+      } else if (entry.isFile() && key.startsWith(prefix)) {
+        yield key;
+      }
+    }
+  }
+}
+
+/** write(2) may write less than asked; loop until the chunk is on disk. */
+async function writeFully(handle: FileHandle, bytes: Uint8Array): Promise<void> {
+  for (let off = 0; off < bytes.byteLength; ) {
+    const { bytesWritten } = await handle.write(bytes, off, bytes.byteLength - off);
+    off += bytesWritten;
+  }
+}
+
+async function syncDirectory(dir: string): Promise<void> {
+  const handle = await open(dir, "r");
+  try {
+    await handle.sync();
+  } finally {
+    await handle.close();
+  }
+}
