@@ -28,6 +28,9 @@ export interface RasterNetworkInput {
   transform: GridTransform;
   /** proj4 definition of the grid's CRS; vertices are cell centres in its units */
   crs: string;
+  /** longest flow path from the divide to each cell, m (longestFlowPath); when given, every link
+   *  carries it at its area cell as `mainStreamLengthM` */
+  flowLengthM?: Float32Array;
   /** channel cells, ascending, where a link must end and a new one start although no tributary joins
    *  (basin outlets chosen by a user); a link ending at one takes the area of that cell */
   breakCells?: Int32Array;
@@ -78,6 +81,7 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
     throw new RangeError(`area (${areaM2.length}) and elevation (${elevation.length}) must have ${w}×${h} = ${n} cells`);
   }
   if (cellGeometry.dx.length !== h) throw new RangeError(`cell geometry has ${cellGeometry.dx.length} rows, the grid has ${h}`);
+  if (input.flowLengthM && input.flowLengthM.length !== n) throw new RangeError(`flowLengthM has ${input.flowLengthM.length} cells, expected ${n}`);
   if (!(thresholdM2 > 0)) throw new RangeError(`the channel threshold must be a positive area in m², got ${thresholdM2}`);
   const isChannel = (i: number) => areaM2[i] >= thresholdM2;
   const offsets = new Int32Array(8);
@@ -152,6 +156,7 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
       lengthM,
       dropM: elevation[startCell[id]] - elevation[c],
       areaM2: areaM2[areaCell],
+      ...(input.flowLengthM ? { mainStreamLengthM: input.flowLengthM[areaCell] } : {}),
     };
   }
   return { network: { links, crs }, startCell, endCell };

@@ -31,11 +31,16 @@ export interface HackResult {
   fit: LinearFit;
 }
 
-/** Main-stream length upstream of each link's downstream end, m: the longest path through the links
- *  to a source (Hack measured the longest stream; the divide segment beyond the source is not known). */
+/** Main-stream length upstream of each link's downstream end, m: the link's `mainStreamLengthM` (the
+ *  longest flow path from the divide, known from a DEM) when every link has one, else the longest path
+ *  through the links to a source (the hillslope above the channel head is then not counted). */
 export function mainStreamLength(network: StreamNetwork): Float64Array {
-  const up = upstreamLinks(network);
   const length = new Float64Array(network.links.length);
+  if (network.links.length > 0 && network.links.every((l) => l.mainStreamLengthM !== undefined)) {
+    network.links.forEach((l, i) => { length[i] = l.mainStreamLengthM!; });
+    return length;
+  }
+  const up = upstreamLinks(network);
   for (const i of topologicalOrder(network)) {
     let longest = 0;
     for (const j of up[i]) longest = Math.max(longest, length[j]);

@@ -15,6 +15,9 @@ export interface StreamLink {
   dropM: number;
   /** contributing area at the downstream end, m²; NaN when unknown (mapped lines without a DEM) */
   areaM2: number;
+  /** longest flow path from the divide to the downstream end, m, where a DEM gives it (from-raster);
+   *  absent otherwise, and Hack's law then measures the main stream along the links from the sources */
+  mainStreamLengthM?: number;
 }
 
 export interface StreamNetwork {

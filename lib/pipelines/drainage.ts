@@ -18,6 +18,7 @@ import { d8Directions } from "@/lib/hydro/d8";
 import { flowAccumulation } from "@/lib/hydro/flow-accumulation";
 import { constantDropThreshold, logSpacedThresholds, type ConstantDropResult } from "@/lib/hydro/constant-drop";
 import { networkFromRaster, paintLinks, type RasterNetwork } from "@/lib/network/from-raster";
+import { longestFlowPath } from "@/lib/network/flow-length";
 import { basinLabels, outletLinksBySize, snapOutlet, subNetwork } from "@/lib/network/basins";
 import { strahlerOrder } from "@/lib/network/strahler";
 import { shreveMagnitude } from "@/lib/network/shreve";
@@ -135,6 +136,7 @@ function analyse(network: StreamNetwork, params: Params) {
       coefficientKm: fit.coefficientKm, coefficientCi: fit.coefficientCi, rSquared: fit.rSquared,
       confidence: fit.confidence, pointsFitted: fit.pointsFitted, minAreaKm2: fit.minAreaKm2, maxAreaKm2: fit.maxAreaKm2,
       units: "L in km, A in km²",
+      lengthMeasuredFrom: "the divide (longest D8 flow path)",
     };
   } catch (err) {
     if (!(err instanceof RangeError)) throw err; // too few sub-basins: reported as null
@@ -177,7 +179,7 @@ function streamsGeoJson(network: StreamNetwork, order: Int32Array, magnitude: Fl
       geometry: { type: "LineString", coordinates },
       properties: {
         id: l.id, downstream: l.downstream, order: order[l.id], magnitude: magnitude[l.id],
-        lengthM: l.lengthM, dropM: l.dropM, areaM2: l.areaM2, slope: l.lengthM > 0 ? l.dropM / l.lengthM : null,
+        lengthM: l.lengthM, mainStreamLengthM: l.mainStreamLengthM ?? null, dropM: l.dropM, areaM2: l.areaM2, slope: l.lengthM > 0 ? l.dropM / l.lengthM : null,
       },
     };
   });
@@ -214,9 +216,10 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, signal });
   stage("accumulation");
   const acc = flowAccumulation(directions, z, cellGeometry, { signal });
+  const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
 
   stage("channels");
-  const base = { directions, areaM2: acc.areaM2, elevation: z.data, cellGeometry, transform: georef.transform, crs: georef.crs.proj4, signal };
+  const base = { directions, areaM2: acc.areaM2, elevation: z.data, flowLengthM, cellGeometry, transform: georef.transform, crs: georef.crs.proj4, signal };
   let thresholdM2: number;
   let constantDrop: ReturnType<typeof constantDropSummary> | null = null;
   const ct = params.channelThreshold;

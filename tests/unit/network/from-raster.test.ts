@@ -54,3 +54,11 @@ describe("networkFromRaster() with break cells", () => {
     expectClose(lower.lengthM, Math.SQRT2 * 10, 1e-12);
   });
 });
+
+describe("networkFromRaster() with flow lengths", () => {
+  it("gives each link the flow length of its area cell as its main-stream length", () => {
+    const flowLengthM = Float32Array.from({ length: 20 }, (_, i) => i * 2);
+    const { network } = networkFromRaster({ ...Y_GRID, thresholdM2: 150, flowLengthM });
+    expect(network.links.map((l) => l.mainStreamLengthM)).toEqual([12, 16, 34]); // cells 6, 8 and 17
+  });
+});

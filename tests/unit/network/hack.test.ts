@@ -39,3 +39,15 @@ describe("hack()", () => {
     expect(() => hack(networkFromPointers([-1, 0, 0]))).toThrow(RangeError);
   });
 });
+
+describe("hack() with lengths measured from the divide", () => {
+  it("uses every link's mainStreamLengthM when all links carry one: L = 2·√A gives h = 0.5 (derived)", () => {
+    const areas = [4e6, 1e6, 1e6, 2.25e6];
+    const network = networkFromPointers([-1, 0, 0, -1], [100, 100, 100, 100], undefined, areas);
+    network.links.forEach((l) => { l.mainStreamLengthM = 2000 * Math.sqrt(l.areaM2 / 1e6); });
+    const h = hack(network);
+    expectClose(h.exponent, 0.5, 1e-12);
+    expectClose(h.coefficientKm, 2, 1e-12);
+    expectClose(mainStreamLength(network)[0], 4000, 1e-9);
+  });
+});
