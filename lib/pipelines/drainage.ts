@@ -109,7 +109,7 @@ function ratioSummary(r: HortonRatio | null) {
   if (!r) return null;
   return {
     value: r.value, ci: r.ci, confidence: r.confidence, stdError: r.stdError, lnStdError: r.lnStdError,
-    rSquared: r.rSquared, ordersUsed: r.ordersUsed, lnValues: r.lnValues,
+    rSquared: r.rSquared, ordersUsed: r.ordersUsed,
   };
 }
 

@@ -33,6 +33,11 @@ export async function main(argv: string[]): Promise<number> {
     console.error(`give --threshold-km2 or --auto-threshold, not both\n${USAGE}`);
     return 2;
   }
+  const numeric = ["threshold-km2", "epsg", "largest"] as const;
+  for (const key of numeric) {
+    const v = values[key];
+    if (v !== undefined && !Number.isFinite(Number(v))) { console.error(`--${key} must be a number, got "${v}"\n${USAGE}`); return 2; }
+  }
   const params: DrainageParams = {
     channelThreshold: values["auto-threshold"]
       ? { method: "constant-drop" }

@@ -8,6 +8,8 @@ import { readDem, type Dem } from "@/lib/raster/read-geotiff";
 import { crsFromEpsg } from "@/lib/raster/crs";
 import { makeGrid } from "@/lib/raster/grid";
 import { projectedCellGeometry } from "@/lib/raster/cell-geometry";
+import { writeGeoTiff } from "@/lib/raster/write-geotiff";
+import { main as analyzeDrainage } from "@/scripts/analyze/drainage";
 import { expectClose } from "@/tests/helpers/expect-close";
 
 const CELL_M = 10;
@@ -202,6 +204,44 @@ describe("runDrainage() on grown terrain", () => {
       expect(info.geoTransform).toEqual([500_000, CELL_M, 0, 4_000_000, 0, -CELL_M]);
       expect(info.stac["proj:epsg"]).toBe(32633);
     }
+  });
+});
+
+describe("runDrainage() basin choice", () => {
+  it("analyses only the largest basin when asked, and labels only its cells (invariant: labels add up to its area)", async () => {
+    const dem = grownTerrain(40, 3);
+    const all = await runDrainage({ dem, outDir: tmp() }, { channelThreshold: { method: "area", km2: 0.0015 } });
+    const one = await runDrainage({ dem, outDir: tmp() }, { channelThreshold: { method: "area", km2: 0.0015 }, basins: { mode: "largest", count: 1 } });
+    expect(one.summary.basins.count).toBe(1);
+    expect(one.summary.network.outlets).toBe(1);
+    expect(one.summary.network.links).toBeLessThan(all.summary.network.links);
+    expect(one.summary.basins.list[0].areaKm2).toBe(all.summary.basins.list[0].areaKm2); // lists are largest first
+    const labels = await readDem(one.artifacts.find((a) => a.name === "basins.tif")!.path!);
+    const cells = Array.from(labels.elevation.data).filter((v) => v === 1).length;
+    expectClose((cells * CELL_M * CELL_M) / 1e6, one.summary.basins.list[0].areaKm2, 1e-12);
+  });
+});
+
+describe("npm run analyze -- drainage", () => {
+  it("writes summary.json, timings.json and every artifact into --out and exits 0", async () => {
+    const dir = tmp(), demPath = path.join(dir, "dem.tif"), out = path.join(dir, "out");
+    const dem = grownTerrain(32, 11);
+    await writeGeoTiff(demPath, dem.elevation, dem.georef);
+    expect(await analyzeDrainage([demPath, "--threshold-km2", "0.0015", "--out", out, "--quiet"])).toBe(0);
+    for (const f of ["summary.json", "timings.json", "streams.geojson", "flow-accumulation.tif", "strahler-order.tif", "basins.tif"]) {
+      expect(existsSync(path.join(out, f)), f).toBe(true);
+    }
+    const summary = JSON.parse(readFileSync(path.join(out, "summary.json"), "utf8"));
+    expect(summary.channels.thresholdKm2).toBe(0.0015);
+    expect(summary.input.crs.epsg).toBe(32633);
+  });
+  it("exits 2 with the usage on a missing DEM path or on both threshold options", async () => {
+    expect(await analyzeDrainage([])).toBe(2);
+    expect(await analyzeDrainage(["x.tif", "--threshold-km2", "1", "--auto-threshold"])).toBe(2);
+    expect(await analyzeDrainage(["x.tif", "--threshold-km2", "many"])).toBe(2);
+  });
+  it("exits 1 with the reason when the DEM cannot be read", async () => {
+    expect(await analyzeDrainage([path.join(tmp(), "missing.tif"), "--out", tmp(), "--quiet"])).toBe(1);
   });
 });
 
