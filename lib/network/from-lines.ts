@@ -349,7 +349,20 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
     }
     outletSnapM = best;
   }
-  const isStop = (n: number) => incident[n].length !== 2 || n === outletNode;
+  // where both lines of a two-line node are hinted to flow in (or out), the node is a confluence at an
+  // outlet (or a split source), not a pass-through point
+  const into = (pi: number, n: number) => {
+    const h = hint[pieces[pi].line];
+    return h === 0 ? 0 : (pieces[pi].to === n) === (h > 0) ? 1 : -1;
+  };
+  /** +1 where every line at a node of two or more is hinted to flow in (a sink), −1 where all flow out */
+  const hintedEnd = new Int8Array(nNodes);
+  for (let n = 0; n < nNodes; n++) {
+    if (incident[n].length < 2) continue;
+    const first = into(incident[n][0], n);
+    if (first !== 0 && incident[n].every((pi) => into(pi, n) === first)) hintedEnd[n] = first;
+  }
+  const isStop = (n: number) => incident[n].length !== 2 || n === outletNode || hintedEnd[n] !== 0;
   const used = new Uint8Array(pieces.length);
   const edges: Edge[] = [];
   const walk = (start: number, first: number): void => {
@@ -457,7 +470,7 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
   for (const c of analysed) {
     const members: number[] = [];
     for (let n = 0; n < nNodes; n++) if (adj[n].length > 0 && cuf.find(n) === c) members.push(n);
-    const terminals = members.filter((n) => adj[n].length === 1);
+    const terminals = members.filter((n) => adj[n].length === 1 || hintedEnd[n] > 0);
     const candidates = terminals.length > 0 ? terminals : members;
     let root = -1;
     let rule: "point" | "lowest-end" | "digitising" = "digitising";

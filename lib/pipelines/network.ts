@@ -31,6 +31,7 @@ import { VectorError } from "@/lib/vector/vector-error";
 const LONLAT = "+proj=longlat +datum=WGS84 +no_defs";
 /** Decimal places of degrees in the GeoJSON output: 1e-7° is about 1 cm, far below any snapping tolerance. */
 const LONLAT_DECIMALS = 7;
+const utf8 = new TextEncoder();
 
 const position = z.tuple([z.number().min(-180).max(180), z.number().min(-90).max(90)]);
 const ring = z.array(position).min(4);
@@ -79,10 +80,11 @@ export interface PipelineHooks {
   signal?: AbortSignal;
 }
 
+/** Same shape as the drainage pipeline's artifacts: the bytes of a small file to store under `name`. */
 export interface NetworkArtifact {
   name: string;
   mediaType: string;
-  body: string;
+  bytes: Uint8Array;
 }
 
 /** A Horton ratio without its full regression object: value, interval and the points fitted. */
@@ -220,9 +222,9 @@ export async function runNetwork(input: NetworkInput, params: NetworkParams, hoo
   };
   progress("output", 0.5);
   const artifacts: NetworkArtifact[] = [
-    { name: "network.geojson", mediaType: "application/geo+json", body: JSON.stringify(networkGeoJson(network, order, magnitude, toLonLat, basinAreaM2 !== null)) },
-    { name: "orders.csv", mediaType: "text/csv", body: ordersCsv(orders) },
-    { name: "topology.geojson", mediaType: "application/geo+json", body: JSON.stringify(topologyGeoJson(report)) },
+    { name: "network.geojson", mediaType: "application/geo+json", bytes: utf8.encode(JSON.stringify(networkGeoJson(network, order, magnitude, toLonLat, basinAreaM2 !== null))) },
+    { name: "orders.csv", mediaType: "text/csv", bytes: utf8.encode(ordersCsv(orders)) },
+    { name: "topology.geojson", mediaType: "application/geo+json", bytes: utf8.encode(JSON.stringify(topologyGeoJson(report))) },
   ];
   progress("output", 1);
   return { summary, artifacts };

@@ -78,7 +78,7 @@ export async function main(argv: string[]): Promise<number> {
     const { summary, artifacts } = await runNetwork({ path: file, demPath: v.dem && path.resolve(v.dem) }, networkParamsSchema.parse(params));
     await mkdir(out, { recursive: true });
     await writeFile(path.join(out, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
-    for (const a of artifacts) await writeFile(path.join(out, a.name), a.body);
+    for (const a of artifacts) await writeFile(path.join(out, a.name), a.bytes);
     const h = summary.horton;
     console.log(`${summary.network.links} links, highest order ${h.highestOrder}, ` +
       `R_B ${h.bifurcation?.value.toFixed(3) ?? "–"}, R_L ${h.length?.value.toFixed(3) ?? "–"}; ` +

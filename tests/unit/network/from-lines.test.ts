@@ -118,6 +118,14 @@ describe("networkFromLines()", () => {
     expectClose(outletLink.dropM, -200 - -400, 1e-9); // from the junction (0, 200) down to (−100, 300)
   });
 
+  test("two lines digitised into one point with nothing below it meet at an outlet instead of being joined (derived)", () => {
+    const { network, report } = networkFromLines([L(-100, 100, 0, 0), L(100, 100, 0, 0)], { ...base, outlet: undefined });
+    expect(network.links).toHaveLength(2);
+    expect(network.links.every((l) => l.downstream === -1)).toBe(true);
+    expect(report.outlets[0]).toMatchObject({ x: X0, y: Y0, rule: "digitising" });
+    expect(report.reversedPieces).toBe(0);
+  });
+
   test("a downstream-id attribute finds the outlet even when the lines are digitised upstream (derived)", () => {
     const lines = tree().map(reversed);
     const downstreamOf = Int32Array.from([-1, 0, 0, 0]);

@@ -8,6 +8,9 @@ import { binaryTree } from "@/lib/fractal/synth/binary-tree";
 import { mulberry32 } from "@/lib/fractal/synth/mulberry32";
 import { tokunagaTree } from "@/lib/fractal/synth/tokunaga-tree";
 import { upstreamLinks, type StreamNetwork } from "@/lib/network/model";
+import { hortonTable } from "@/lib/network/horton";
+import { strahlerStreams } from "@/lib/network/strahler";
+import { runDrainage } from "@/lib/pipelines/drainage";
 import { runNetwork, type NetworkSummary } from "@/lib/pipelines/network";
 import { expectClose } from "@/tests/helpers/expect-close";
 
@@ -132,7 +135,7 @@ describe("runNetwork()", () => {
     expectClose(summary.horton.bifurcation!.value, 2, 1e-12);
     // lengths are geodesic: each order's total within 0.1 % of 32 × 100 m in the local plane (derived)
     for (const o of summary.orders) expectClose(o.totalLengthM / 3200, 1, 1e-3);
-    const geo = JSON.parse(artifacts.find((a) => a.name === "network.geojson")!.body);
+    const geo = JSON.parse(new TextDecoder().decode(artifacts.find((a) => a.name === "network.geojson")!.bytes));
     expect(geo.features).toHaveLength(63);
     expect(geo.features.filter((f: { properties: { strahler: number } }) => f.properties.strahler === 6)).toHaveLength(1);
     expect(geo.features[0].geometry.coordinates[0][0]).toBeLessThan(-5);
@@ -151,7 +154,7 @@ describe("runNetwork()", () => {
     expectClose(summary.topology.loops.locations[0].x - E0, -20, 1e-9);
     expect(summary.orders.map((o) => o.streams)).toEqual([2, 1]);
     expectClose(summary.network.totalLengthM, 200 + 200 * Math.SQRT2, 1e-9);
-    const points = JSON.parse(artifacts.find((a) => a.name === "topology.geojson")!.body).features;
+    const points = JSON.parse(new TextDecoder().decode(artifacts.find((a) => a.name === "topology.geojson")!.bytes)).features;
     expect(points.map((f: { properties: { kind: string } }) => f.properties.kind).sort()).toEqual(["loop-removed", "outlet"]);
   });
 
@@ -166,6 +169,35 @@ describe("runNetwork()", () => {
     expect(dd.basinAreaKm2).toBeLessThan(200);
     expectClose(summary.horton.area!.value, 4.261827, 1e-6); // a constant area scale leaves R_A unchanged (derived)
   });
+});
+
+describe("round trip through the drainage pipeline", () => {
+  type StreamFeature = { properties: { id: number; downstream: number; lengthM: number }; geometry: { coordinates: [number, number][] } };
+  /** The drainage network as its GeoJSON states it, less the links of one cell (one position: not a line in
+   *  RFC 7946 §3.1.4), whose inflows then become outlets, as they do when the lines are read back. */
+  function statedNetwork(features: StreamFeature[]): StreamNetwork {
+    const single = new Set(features.filter((f) => f.geometry.coordinates.every(([x, y]) => x === f.geometry.coordinates[0][0] && y === f.geometry.coordinates[0][1])).map((f) => f.properties.id));
+    const kept = features.filter((f) => !single.has(f.properties.id));
+    const index = new Map(kept.map((f, i) => [f.properties.id, i]));
+    return {
+      crs: LONLAT,
+      links: kept.map((f, i) => ({ id: i, downstream: index.get(f.properties.downstream) ?? -1, path: new Float64Array(0), lengthM: f.properties.lengthM, dropM: NaN, areaM2: NaN })),
+    };
+  }
+
+  for (const dem of ["elev.tif", "jacksboro.tif"]) {
+    test(`the streams of ${dem} (r-cran-terra, Debian) exported as GeoJSON and read back keep their per-order counts and lengths within the 1 m snapping tolerance (derived)`, async () => {
+      const demPath = path.join(import.meta.dirname, "../../fixtures/cache/debian", dem);
+      const drainage = await runDrainage({ demPath, outDir: tmp }, { channelThreshold: { method: "area", km2: 1 } });
+      const streams = drainage.artifacts.find((a) => a.name === "streams.geojson")!;
+      const doc = JSON.parse(new TextDecoder().decode(streams.bytes)) as { features: StreamFeature[] };
+      const expected = hortonTable(strahlerStreams(statedNetwork(doc.features)));
+      const { summary } = await runNetwork({ geojson: doc }, { snapToleranceM: 1 });
+      expect(summary.topology).toMatchObject({ snappedEndpoints: 0, midLineJunctions: 0, reversedPieces: 0, loops: { count: 0 } });
+      expect(summary.orders.map((o) => o.streams)).toEqual(expected.map((r) => r.streamCount));
+      summary.orders.forEach((o, k) => expectClose(o.meanLengthM, expected[k].meanLengthM, 1));
+    });
+  }
 });
 
 describe("npm run analyze -- network", () => {
