@@ -1,21 +1,18 @@
-// GeoTIFF 1.1 (OGC 19-008r4) elevation reader over geotiff.js, after the layout check of tiff-structure.ts.
-// Blocks are decoded inline (no worker pool) in windows of whole block rows, so memory is the output grid
-// plus one window; every decoder is bounded to its block's declared size.
-import { inflateSync } from "node:zlib";
-import { fromFile, getDecoder, type TypedArray } from "geotiff";
+// GeoTIFF 1.1 (OGC 19-008r4) elevation reader: the layout check of tiff-structure.ts, then one block at a
+// time through block-decoder.ts (bounded decompression, geotiff.js's decoders inline, no worker pool).
+import { open } from "node:fs/promises";
 import { makeGrid, type Grid } from "@/lib/raster/grid";
 import { geographicCellGeometry, projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
 import { RasterError } from "@/lib/raster/errors";
 import { checkTiffLayout, TAG, type TiffLayout } from "@/lib/raster/tiff-structure";
 import { crsFromGeoKeys, GEOKEY, parseGeoKeys, verticalUnitToMetre, type CrsInfo } from "@/lib/raster/crs";
 import { lonLatTransformer } from "@/lib/raster/reproject";
+import { makeBlockDecoder } from "@/lib/raster/block-decoder";
 
 export type { CrsInfo } from "@/lib/raster/crs";
 
 /** Largest grid read unless the caller says otherwise: 400 M cells = 1.6 GB of Float32 elevations. */
 export const DEFAULT_CELL_BUDGET = 400_000_000;
-/** Cells decoded per window; 4 M cells keeps the window buffer at 32 MB for Float64 files. */
-const WINDOW_CELLS = 1 << 22;
 
 export interface Georeference {
   crs: CrsInfo;
@@ -212,113 +209,71 @@ export async function inspectGeoTiff(path: string, options: ReadDemOptions = {})
   return { ...info, georef };
 }
 
-/** Reads one band of a GeoTIFF DEM into Float32 metres (NaN = nodata) with its georeferencing and cell geometry. */
+const SAMPLE_ARRAY = {
+  UInt8: Uint8Array, UInt16: Uint16Array, UInt32: Uint32Array, Int8: Int8Array, Int16: Int16Array, Int32: Int32Array,
+  Float32: Float32Array, Float64: Float64Array,
+} as const;
+
+/** Reads one band of a GeoTIFF DEM into Float32 metres (NaN = nodata) with its georeferencing and cell geometry.
+ *  Blocks are read one at a time at the offsets the layout check validated, so memory is the output grid plus
+ *  one block; geotiff.js's own window read was not used because it copies every cell through a DataView
+ *  call (measured: 3.9 s for 16.7 M uncompressed cells, against well under a second this way). */
 export async function readDem(path: string, options: ReadDemOptions = {}): Promise<Dem> {
   const budget = checkOptions(options);
-  const d = describe(await checkTiffLayout(path, budget), options);
+  const layout = await checkTiffLayout(path, budget);
+  const d = describe(layout, options);
   const { width, height } = d.info;
   const scale = d.verticalToMetre * (options.zFactor ?? 1);
   const floatNodata = d.info.dataType === "Float32" && d.info.nodata !== null ? Math.fround(d.info.nodata) : d.info.nodata;
+  // NaN needs no comparison: NaN · scale stays NaN
   const nodata = floatNodata === null || Number.isNaN(floatNodata) ? undefined : floatNodata;
+  const Samples = SAMPLE_ARRAY[d.info.dataType as keyof typeof SAMPLE_ARRAY];
+  const sampleBytes = Samples.BYTES_PER_ELEMENT;
+  const { blockWidth, blockHeight, planarConfiguration, samplesPerPixel } = layout;
+  const across = Math.ceil(width / blockWidth);
+  const down = Math.ceil(height / blockHeight);
+  const plane = planarConfiguration === 2 ? d.bandIndex * across * down : 0;
+  const stride = planarConfiguration === 1 ? samplesPerPixel : 1;
+  const sampleOffset = planarConfiguration === 1 ? d.bandIndex : 0;
+  const sparseValue = nodata === undefined && d.info.nodata === null ? 0 : NaN;
+
+  const decoder = await makeBlockDecoder(layout);
   const out = new Float32Array(width * height);
-  const tiff = await fromFile(path);
+  const fh = await open(path, "r");
   try {
-    const image = await tiff.getImage(0);
-    const pool = guardedDecoders(d.layout);
-    const rowsPerWindow = Math.max(1, Math.floor(WINDOW_CELLS / (width * d.layout.blockHeight))) * d.layout.blockHeight;
-    for (let y0 = 0; y0 < height; y0 += rowsPerWindow) {
+    for (let by = 0; by < down; by++) {
       if (options.signal?.aborted) throw new RasterError("aborted", "reading was cancelled");
-      const y1 = Math.min(height, y0 + rowsPerWindow);
-      let values: TypedArray;
-      try {
-        const result = await image.readRasters({ window: [0, y0, width, y1], samples: [d.bandIndex], pool: pool as never, signal: options.signal });
-        values = (result as unknown as TypedArray[])[0];
-      } catch (err) {
-        if (err instanceof RasterError) throw err;
-        if (options.signal?.aborted) throw new RasterError("aborted", "reading was cancelled");
-        throw new RasterError("corrupt", `a block does not decode: ${(err as Error).message}`);
-      }
-      const base = y0 * width;
-      for (let i = 0; i < values.length; i++) {
-        const v = values[i];
-        out[base + i] = v === nodata ? NaN : v * scale;
+      const y0 = by * blockHeight;
+      const rows = Math.min(blockHeight, height - y0);
+      for (let bx = 0; bx < across; bx++) {
+        const x0 = bx * blockWidth;
+        const cols = Math.min(blockWidth, width - x0);
+        const index = plane + by * across + bx;
+        const count = layout.blockByteCounts[index];
+        if (count === 0) {
+          // a sparse block: GDAL's reading is nodata, or 0 without a nodata value
+          for (let r = 0; r < rows; r++) out.fill(sparseValue, (y0 + r) * width + x0, (y0 + r) * width + x0 + cols);
+          continue;
+        }
+        const stored = new Uint8Array(count);
+        await fh.read(stored, 0, count, layout.blockOffsets[index]);
+        const decoded = await decoder.decode(stored);
+        const samples = new Samples(decoded, 0, Math.floor(decoded.byteLength / sampleBytes));
+        const rowStride = blockWidth * stride;
+        const rowsHere = Math.min(rows, Math.floor(samples.length / rowStride));
+        if (rowsHere < rows) throw new RasterError("corrupt", `block ${index} holds ${rowsHere} of its ${rows} rows`);
+        for (let r = 0; r < rows; r++) {
+          let src = r * rowStride + sampleOffset;
+          const dst = (y0 + r) * width + x0;
+          for (let c = 0; c < cols; c++, src += stride) {
+            const v = samples[src];
+            out[dst + c] = v === nodata ? NaN : v * scale;
+          }
+        }
       }
     }
   } finally {
-    await tiff.close();
+    await fh.close();
   }
   return { elevation: makeGrid(out, width, height), georef: d.georef, cellGeometry: d.cellGeometry(), info: d.info };
-}
-
-interface BlockDecoder { decode(buffer: ArrayBufferLike): Promise<ArrayBufferLike> }
-
-/**
- * geotiff.js's decoders, each bounded: Deflate is inflated by node:zlib with the block's size as the
- * output limit (a small stream may expand without bound), and every decoded block must have the
- * size its header implies. geotiff.js's LZW decoder prints a warning per block that ends without
- * its end code; that warning becomes an error here instead of log lines.
- * Passed to readRasters as its "pool": geotiff.js asks it for a decoder bound to the image's parameters.
- */
-function guardedDecoders(layout: TiffLayout): { bindParameters(compression: number, parameters: unknown): BlockDecoder } {
-  const bytesPerPixel = layout.planarConfiguration === 2
-    ? layout.bitsPerSample[0] / 8
-    : layout.bitsPerSample.reduce((a, b) => a + b, 0) / 8;
-  const rowBytes = layout.blockWidth * bytesPerPixel;
-  const maxBytes = rowBytes * layout.blockHeight;
-  // strips: the last one may hold only the remaining rows
-  const lastRows = layout.tiled ? layout.blockHeight : layout.height - (Math.ceil(layout.height / layout.blockHeight) - 1) * layout.blockHeight;
-  const minBytes = rowBytes * lastRows;
-  return {
-    bindParameters(compression, parameters) {
-      let decoder: Promise<BlockDecoder> | null = null;
-      return {
-        async decode(buffer) {
-          decoder ??= bounded(compression, parameters, minBytes, maxBytes);
-          return (await decoder).decode(buffer);
-        },
-      };
-    },
-  };
-}
-
-async function bounded(compression: number, parameters: unknown, minBytes: number, maxBytes: number): Promise<BlockDecoder> {
-  const decoder = await getDecoder(compression, parameters as never) as unknown as BlockDecoder & { decodeBlock(b: ArrayBufferLike): ArrayBufferLike | Promise<ArrayBufferLike> };
-  const inner = decoder.decodeBlock.bind(decoder);
-  const name = COMPRESSION[compression];
-  decoder.decodeBlock = async (buffer: ArrayBufferLike): Promise<ArrayBufferLike> => {
-    let out: ArrayBufferLike;
-    if (compression === 8 || compression === 32946) {
-      out = inflateBounded(buffer, maxBytes);
-    } else {
-      const warn = console.warn;
-      let warned = false;
-      console.warn = () => { warned = true; };
-      let result: ArrayBufferLike | Promise<ArrayBufferLike>;
-      try {
-        result = inner(buffer);
-      } finally {
-        console.warn = warn;
-      }
-      if (warned) throw new RasterError("corrupt", `a ${name} block ends before its end code (truncated or damaged data)`);
-      out = await result;
-    }
-    if (out.byteLength < minBytes || out.byteLength > maxBytes) {
-      throw new RasterError("corrupt", `a ${name} block decodes to ${out.byteLength} bytes, expected ${minBytes === maxBytes ? maxBytes : `${minBytes}–${maxBytes}`}`);
-    }
-    return out;
-  };
-  return decoder;
-}
-
-function inflateBounded(buffer: ArrayBufferLike, maxBytes: number): ArrayBuffer {
-  let out: Buffer;
-  try {
-    out = inflateSync(new Uint8Array(buffer), { maxOutputLength: maxBytes });
-  } catch (err) {
-    const code = (err as { code?: string }).code;
-    if (code === "ERR_BUFFER_TOO_LARGE") throw new RasterError("corrupt", `a Deflate block expands past its declared ${maxBytes} bytes`);
-    throw new RasterError("corrupt", `a Deflate block does not inflate: ${(err as Error).message}`);
-  }
-  // a fresh ArrayBuffer: the predictor makes typed-array views at offsets from its start
-  return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength) as ArrayBuffer;
 }

@@ -39,6 +39,7 @@ export const TAG = {
   GeoDoubleParams: 34736,
   GeoAsciiParams: 34737,
   GdalNodata: 42113,
+  LercParameters: 50674,
 } as const;
 
 /** The tags whose values the reader uses; every other tag is only bounds-checked. */
@@ -69,6 +70,9 @@ export interface TiffLayout {
   blockWidth: number;
   blockHeight: number;
   blockCount: number;
+  /** file offset and byte count of every block, in TIFF order (row by row, plane by plane) */
+  blockOffsets: number[];
+  blockByteCounts: number[];
   /** kept tag values of the first directory: numbers, or the text of an ASCII tag */
   tags: Map<number, number[] | string>;
 }
@@ -247,6 +251,7 @@ async function walk(fh: FileHandle, size: number, cellBudget: number): Promise<T
     fileSize: size, bigTiff: big, littleEndian: r.little, directoryCount: seen.size,
     width, height, samplesPerPixel, bitsPerSample, sampleFormat,
     compression, predictor: await num(TAG.Predictor, 1),
-    planarConfiguration, tiled, blockWidth, blockHeight, blockCount, tags,
+    planarConfiguration, tiled, blockWidth, blockHeight, blockCount,
+    blockOffsets: offsets.slice(0, blockCount), blockByteCounts: counts.slice(0, blockCount), tags,
   };
 }

@@ -46,6 +46,19 @@ describe("readDem() on GDAL-written variants of one array", () => {
     expect(mismatches(dem.elevation.data, want)).toBe(0);
   });
 
+  it.each(["f32-bigendian-NONE", "f32-bigendian-DEFLATE-p3", "i16-bigendian-LZW-p2"])(
+    "big-endian %s decodes to the same values (TIFF 6.0 byte order \"MM\"; gdal_translate -co ENDIANNESS=BIG)", async (name) => {
+      const dem = await readDem(fixture(`variants/${name}.tif`));
+      expect(mismatches(dem.elevation.data, want)).toBe(0);
+    });
+
+  it("a sparse tile (byte count 0) reads as nodata, the written tile as its values (GDAL SPARSE_OK convention)", async () => {
+    const dem = await readDem(fixture("hostile/sparse-block.tif"));
+    const row = Array.from(dem.elevation.data.subarray(0, 64));
+    expect(row.slice(0, 32).every((v) => v === 7)).toBe(true);
+    expect(row.slice(32).every((v) => Number.isNaN(v))).toBe(true);
+  });
+
   it("reports the compression, predictor and block layout it found (derived from the gdal_translate options)", async () => {
     const info = await inspectGeoTiff(fixture("variants/f32-ZSTD-p3-tile.tif"));
     expect([info.compression, info.predictor, info.tiled, info.tileWidth, info.tileHeight]).toEqual(["Zstd", 3, true, 32, 32]);
@@ -135,11 +148,13 @@ describe("readDem() georeferencing and CRS", () => {
 });
 
 describe("readDem() options", () => {
-  it("several bands need a band choice, and band 2 reads the second band (derived)", async () => {
-    const file = fixture("variants/bands-3.tif");
+  it.each(["bands-3", "bands-3-planar"])("%s: several bands need a band choice, and band k reads k × the base values (gdal_translate -scale_k, derived)", async (name) => {
+    const file = fixture(`variants/${name}.tif`);
     await expect(readDem(file)).rejects.toMatchObject({ code: "band-required" });
-    const dem = await readDem(file, { band: 2 });
-    expect(mismatches(dem.elevation.data, expected())).toBe(0);
+    for (const band of [1, 2, 3]) {
+      const dem = await readDem(file, { band });
+      expect(mismatches(dem.elevation.data, expected().map((v) => v * band))).toBe(0);
+    }
     await expect(readDem(file, { band: 4 })).rejects.toMatchObject({ code: "band-required" });
   });
 

@@ -15,6 +15,7 @@ const HOSTILE: [file: string, code: RasterError["code"], detail: RegExp][] = [
   ["ifd-loop.tif", "corrupt", /loops/],
   ["ifd-loop-bigtiff.tif", "corrupt", /loops/],
   ["deflate-bomb.tif", "corrupt", /expands past/],
+  ["zstd-bomb.tif", "corrupt", /expand past/],
   ["lzw-no-eoi.tif", "corrupt", /LZW/],
   ["png-named.tif", "not-tiff", /PNG/],
   ["old-jpeg.tif", "unsupported", /old-style JPEG/],
