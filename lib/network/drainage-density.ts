@@ -1,5 +1,6 @@
 // Horton (1945), Geol. Soc. Am. Bull. 56(3):275–370: drainage density = total channel length / basin area.
 import { StreamNetwork } from "./model";
+import { M2_PER_KM2, M_PER_KM } from "./units";
 
 export interface DrainageDensity {
   /** km of channel per km² of basin */
@@ -18,5 +19,6 @@ export function drainageDensity(network: StreamNetwork): DrainageDensity {
     if (link.downstream < 0) { areaM2 += link.areaM2; outlets++; }
   }
   if (!(areaM2 > 0)) throw new RangeError("drainage density needs the outlets' contributing areas (none known)");
-  return { valuePerKm: lengthM / 1000 / (areaM2 / 1e6), totalLengthKm: lengthM / 1000, basinAreaKm2: areaM2 / 1e6, outlets };
+  const lengthKm = lengthM / M_PER_KM, areaKm2 = areaM2 / M2_PER_KM2;
+  return { valuePerKm: lengthKm / areaKm2, totalLengthKm: lengthKm, basinAreaKm2: areaKm2, outlets };
 }

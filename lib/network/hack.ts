@@ -3,9 +3,7 @@
 import { linearRegression, LinearFit } from "@/lib/stats/linear-regression";
 import { studentTQuantile } from "@/lib/stats/student-t";
 import { StreamNetwork, topologicalOrder, upstreamLinks } from "./model";
-
-const M_PER_KM = 1000;
-const M2_PER_KM2 = 1e6;
+import { M2_PER_KM2, M_PER_KM } from "./units";
 
 export interface HackOptions {
   /** fit only sub-basins at least this large, m²; default 0 (all) */

@@ -11,7 +11,8 @@ import { z } from "zod";
 import { readDem, type Dem } from "@/lib/raster/read-geotiff";
 import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import { lonLatTransformer } from "@/lib/raster/reproject";
-import { makeGrid } from "@/lib/raster/grid";
+import { makeGrid, type Grid } from "@/lib/raster/grid";
+import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { priorityFlood } from "@/lib/hydro/priority-flood";
 import { resolveFlats } from "@/lib/hydro/flats";
 import { d8Directions } from "@/lib/hydro/d8";
@@ -28,8 +29,8 @@ import { hack } from "@/lib/network/hack";
 import { tokunaga } from "@/lib/network/tokunaga";
 import { drainageDensity } from "@/lib/network/drainage-density";
 import { upstreamLinks, type StreamNetwork } from "@/lib/network/model";
+import { M2_PER_KM2 } from "@/lib/network/units";
 
-const M2_PER_KM2 = 1e6;
 /** decimals of lon/lat in the GeoJSON: 1e-7° is about 1 cm, below any DEM's cell (RFC 7946 §11.2) */
 const LONLAT_DECIMALS = 7;
 /** basins listed one by one in the summary; "all" can mean thousands of small edge basins */
@@ -186,6 +187,33 @@ function streamsGeoJson(network: StreamNetwork, order: Int32Array, magnitude: Fl
   return new TextEncoder().encode(JSON.stringify({ type: "FeatureCollection", features }));
 }
 
+/** Depression filling, flats and D8. The flat increments (4 bytes a cell) stay inside, so they can be
+ *  collected before accumulation allocates its arrays. */
+function conditionAndRoute(z: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, signal?: AbortSignal) {
+  stage("fill");
+  const fill = priorityFlood(z, { epsilon: params.epsilonFill, signal });
+  stage("flats");
+  const flats = params.epsilonFill ? null : resolveFlats(z, { signal });
+  stage("directions");
+  const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, signal });
+  return {
+    directions,
+    conditioning: {
+      method: params.epsilonFill ? "priority-flood-epsilon" : "priority-flood-with-flat-resolution",
+      cellsRaised: fill.cellsRaised, maxRaiseM: fill.maxRaise,
+      flatCells: flats?.flatCells ?? 0, flats: flats?.flats ?? 0, unresolvedFlats: flats?.unresolvedFlats ?? 0,
+    },
+  };
+}
+
+/** Contributing areas and flow lengths; the cell counts and the topological order (8 bytes a cell)
+ *  are dropped on return, as nothing after this needs them. */
+function accumulate(directions: Grid<Uint8Array>, z: Grid<Float32Array>, cellGeometry: CellGeometry, signal?: AbortSignal) {
+  const acc = flowAccumulation(directions, z, cellGeometry, { signal });
+  const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
+  return { areaM2: acc.areaM2, flowLengthM, validCells: acc.validCells, outletCells: acc.outlets };
+}
+
 /** DEM → summary (deterministic, units in keys) + artifacts (streams GeoJSON; accumulation, Strahler order and basin GeoTIFFs). */
 export async function runDrainage(input: DrainageInput, rawParams: DrainageParams, hooks: DrainageHooks = {}) {
   const params = drainageParamsSchema.parse(rawParams);
@@ -208,15 +236,10 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   // the pipeline conditions a copy when it was handed a DEM, so the caller's elevations stay as they were
   const z = makeGrid("dem" in input ? dem.elevation.data.slice() : dem.elevation.data, width, height);
 
-  stage("fill");
-  const fill = priorityFlood(z, { epsilon: params.epsilonFill, signal });
-  stage("flats");
-  const flats = params.epsilonFill ? null : resolveFlats(z, { signal });
-  stage("directions");
-  const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, signal });
+  const { directions, conditioning } = conditionAndRoute(z, cellGeometry, params, stage, signal);
   stage("accumulation");
-  const acc = flowAccumulation(directions, z, cellGeometry, { signal });
-  const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
+  const acc = accumulate(directions, z, cellGeometry, signal);
+  const flowLengthM = acc.flowLengthM;
 
   stage("channels");
   const base = { directions, areaM2: acc.areaM2, elevation: z.data, flowLengthM, cellGeometry, transform: georef.transform, crs: georef.crs.proj4, signal };
@@ -253,7 +276,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   let outletCells: number[];
   let outletLinks: number[];
   if (snapped) {
-    outletCells = snapped;
+    outletCells = [...new Set(snapped)]; // two points may snap to one cell: one basin
     const wanted = new Set(snapped);
     outletLinks = full.links.filter((l) => wanted.has(raster.endCell[l.id])).map((l) => l.id);
   } else {
@@ -307,12 +330,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
       cellSizeM: dem.info.cellSizeM,
       bboxLonLat: dem.info.bboxLonLat,
     },
-    conditioning: {
-      method: params.epsilonFill ? "priority-flood-epsilon" : "priority-flood-with-flat-resolution",
-      cellsRaised: fill.cellsRaised, maxRaiseM: fill.maxRaise,
-      flatCells: flats?.flatCells ?? 0, flats: flats?.flats ?? 0, unresolvedFlats: flats?.unresolvedFlats ?? 0,
-      outletCells: acc.outlets,
-    },
+    conditioning: { ...conditioning, outletCells: acc.outletCells },
     channels: {
       method: ct.method, thresholdKm2: thresholdM2 / M2_PER_KM2,
       constantDrop,
