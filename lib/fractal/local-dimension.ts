@@ -2,7 +2,7 @@
 // windows, giving a map of roughness; every window is fitted over the same lags so the values compare.
 import { makeGrid, type Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
-import { logSpacedLags, variogram } from "./variogram";
+import { isotropicVariogram, logSpacedLags } from "./variogram";
 
 /** Default share of valid cells a window needs; below it the map holds nodata (NaN). */
 export const DEFAULT_MIN_VALID_FRACTION = 0.5;
@@ -64,7 +64,7 @@ export function localDimension(grid: Grid<Float32Array>, geometry: CellGeometry,
         for (let x = 0; x < win; x++) { const v = row[x]; if (v === v) { valid++; if (v < lo) lo = v; if (v > hi) hi = v; } }
       }
       if (valid < minValid * win * win || !(hi > lo)) continue; // too sparse, or flat: no dimension
-      const v = variogram(makeGrid(crop, win, win), sub, { lags, range: "all" }).isotropic;
+      const v = isotropicVariogram(makeGrid(crop, win, win), sub, { lags, range: "all" });
       const d = v.dimension.value;
       if (!Number.isFinite(d)) continue;
       dim[j * ow + i] = d; r2[j * ow + i] = v.fit.rSquared;

@@ -16,9 +16,9 @@ import { networkFromRaster } from "@/lib/network/from-raster";
 import { strahlerOrder } from "@/lib/network/strahler";
 
 const repoRoot = path.resolve(import.meta.dirname, "../..");
-const referenceDir = path.resolve(repoRoot, "../shared/reference");
+export const referenceDir = path.resolve(repoRoot, "../shared/reference");
 /** The benchmark surface of the issues: fbm.py SIZE 0.7 7 with a 30 m cell (reference README). */
-const SURFACE = { hurst: 0.7, seed: 7, cellM: 30 };
+export const SURFACE = { hurst: 0.7, seed: 7, cellM: 30 };
 /** UTM zone 33N: any projected metre CRS would do; the README asks for a UTM one. */
 const SURFACE_EPSG = 32633;
 /** Targets of issue 3 on the 4096² surface. */
@@ -53,7 +53,7 @@ function pythonWithNumpy(): string {
 }
 
 /** Raw little-endian Float32 file straight into one Float32Array (no intermediate buffer). */
-function readRawFloat32(file: string, cells: number): Float32Array {
+export function readRawFloat32(file: string, cells: number): Float32Array {
   const data = new Float32Array(cells);
   const bytes = new Uint8Array(data.buffer);
   const fd = openSync(file, "r");
@@ -72,7 +72,7 @@ function readRawFloat32(file: string, cells: number): Float32Array {
 /** The synthetic surface as the README describes it: raw .f32 from fbm.py, then a GeoTIFF (Float32,
  *  Deflate, floating-point predictor, 256×256 tiles, UTM, nodata −9999) by gdal_translate via an ENVI
  *  header. Returns the GeoTIFF path, or null when gdal_translate is missing. */
-function makeSurface(dir: string, size: number): { raw: string; tif: string | null } {
+export function makeSurface(dir: string, size: number): { raw: string; tif: string | null } {
   const raw = path.join(dir, "surface.f32");
   execFileSync(pythonWithNumpy(), [path.join(referenceDir, "fbm.py"), String(size), String(SURFACE.hurst), String(SURFACE.seed), raw]);
   writeFileSync(
