@@ -7,8 +7,6 @@ const nextConfig: NextConfig = {
     "geotiff", "pg", "pg-boss", "smtp-server", "nodemailer", "mailparser", "bcryptjs", "jose",
     "drizzle-orm", "proj4", "epsg-index", "geographiclib-geodesic", "@aws-sdk/client-s3", "@aws-sdk/lib-storage",
   ],
-  // The test harness builds into its own directory so it never replaces the build a running `npm start` serves.
-  distDir: process.env.RILLSCALE_DIST_DIR ?? ".next",
   poweredByHeader: false,
   // `next build` would type-check every file in the repository, so a half-written script elsewhere could stop the
   // server from building; types are checked by `npm run typecheck` instead.

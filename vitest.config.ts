@@ -19,6 +19,8 @@ export default defineConfig({
         test: {
           name: "integration",
           include: ["tests/integration/**/*.test.ts"],
+          globalSetup: ["tests/setup/global.ts"],
+          setupFiles: ["tests/setup/env.ts"],
           testTimeout: 120_000,
           hookTimeout: 300_000,
           fileParallelism: false,
@@ -29,6 +31,8 @@ export default defineConfig({
         test: {
           name: "e2e",
           include: ["tests/e2e/**/*.test.ts"],
+          globalSetup: ["tests/setup/global.ts"],
+          setupFiles: ["tests/setup/env.ts"],
           testTimeout: 180_000,
           hookTimeout: 300_000,
           fileParallelism: false,

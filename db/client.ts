@@ -10,7 +10,9 @@ import * as schema from "@/db/schema";
 /** A database handle or an open transaction: services accept either, so callers can compose them atomically. */
 export type Db = PgDatabase<NodePgQueryResultHKT, typeof schema>;
 
-export const makeDb = (pool: pg.Pool): Db => drizzle(pool, { schema, casing: "snake_case" });
+/** `logQuery` sees every statement Drizzle sends (tests count queries with it). */
+export const makeDb = (pool: pg.Pool, logQuery?: (sql: string) => void): Db =>
+  drizzle(pool, { schema, casing: "snake_case", ...(logQuery ? { logger: { logQuery } } : {}) });
 
 // Next can evaluate this module more than once per process (route bundles); keep one pool per process.
 const holder = globalThis as unknown as { __rillscaleDb?: { pool: pg.Pool; db: Db } };

@@ -34,7 +34,6 @@ export interface AppEndpoints {
   port: number;
   smtpPort: number;
   mailDir: string;
-  distDir: string;
 }
 
 export function appEnv(info: ClusterInfo, secrets: Secrets, e: AppEndpoints): Record<string, string> {
@@ -48,7 +47,6 @@ export function appEnv(info: ClusterInfo, secrets: Secrets, e: AppEndpoints): Re
     SMTP_PORT: String(e.smtpPort),
     RILLSCALE_MAIL_DIR: e.mailDir,
     RILLSCALE_DEV_MAIL: "1",
-    RILLSCALE_DIST_DIR: e.distDir,
     PORT: String(e.port),
     NEXT_TELEMETRY_DISABLED: "1",
   };
@@ -90,8 +88,9 @@ function newestMtime(p: string): number {
   return newest;
 }
 
-export function buildIsStale(distDir: string, root = projectRoot): boolean {
-  const id = path.join(root, distDir, "BUILD_ID");
+/** `npm start` and the tests share one build in .next (Next's default distDir). */
+export function buildIsStale(root = projectRoot): boolean {
+  const id = path.join(root, ".next", "BUILD_ID");
   if (!existsSync(id)) return true;
   const built = statSync(id).mtimeMs;
   return BUILD_INPUTS.some((p) => newestMtime(path.join(root, p)) > built);
@@ -99,10 +98,10 @@ export function buildIsStale(distDir: string, root = projectRoot): boolean {
 
 const nextBin = (root: string) => path.join(root, "node_modules", "next", "dist", "bin", "next");
 
-export function buildApp(distDir: string, root = projectRoot): void {
-  console.log(`rillscale: building the app (next build → ${distDir})`);
+export function buildApp(root = projectRoot): void {
+  console.log("rillscale: building the app (next build)");
   const r = spawnSync(process.execPath, [nextBin(root), "build"], {
-    cwd: root, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, RILLSCALE_DIST_DIR: distDir, NEXT_TELEMETRY_DISABLED: "1" },
+    cwd: root, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
   });
   if (r.status !== 0) throw new Error("next build failed");
 }

@@ -9,7 +9,6 @@ import {
 } from "@/scripts/stack";
 
 const DATABASE = "rillscale";
-const DIST_DIR = ".next";
 const port = Number(process.env.PORT ?? 3000);
 const smtpPort = Number(process.env.SMTP_PORT ?? 2525);
 const mailDir = path.join(projectRoot, ".data", "mail");
@@ -19,9 +18,9 @@ const cluster = await ensureCluster();
 console.log(`rillscale: PostgreSQL on 127.0.0.1:${cluster.port} (${cluster.startedNow ? "started" : "already running"})`);
 const secrets = localSecrets();
 const seeded = await prepareDatabase(cluster, DATABASE, secrets);
-if (buildIsStale(DIST_DIR)) buildApp(DIST_DIR);
+if (buildIsStale()) buildApp();
 const catcher = await startMailCatcher({ port: smtpPort, dir: mailDir });
-const env = appEnv(cluster, secrets, { database: DATABASE, port, smtpPort: catcher.port, mailDir, distDir: DIST_DIR });
+const env = appEnv(cluster, secrets, { database: DATABASE, port, smtpPort: catcher.port, mailDir });
 const web = spawnServer(env, port, "inherit");
 const worker = spawnWorker(env, "inherit");
 
