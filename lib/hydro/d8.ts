@@ -77,24 +77,28 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
     dir[row] = edgeDirection(z, w, h, 0, y, inv);
     dir[row + w - 1] = edgeDirection(z, w, h, w - 1, y, inv);
     // Interior: all eight neighbours exist; NaN neighbours give NaN slopes, which never compare greater.
+    // A 3×3 window slides along the row, so each elevation is loaded once per row, not eight times.
     const i0 = inv[0], i1 = inv[1], i2 = inv[2], i3 = inv[3], i4 = inv[4], i5 = inv[5], i6 = inv[6], i7 = inv[7];
-    for (let i = row + 1, end = row + w - 1; i < end; i++) {
-      const zc = z[i];
-      if (zc !== zc) {
-        dir[i] = NO_FLOW;
-        continue;
+    const north = row - w, south = row + w;
+    let nw = z[north], n = z[north + 1], cw = z[row], c = z[row + 1], sw = z[south], s = z[south + 1];
+    for (let x = 1; x < w - 1; x++) {
+      const ne = z[north + x + 1], ce = z[row + x + 1], se = z[south + x + 1];
+      if (c === c) {
+        let best = 0, code = NO_FLOW, v: number;
+        if ((v = (c - ce) * i0) > best) { best = v; code = 0; }
+        if ((v = (c - se) * i1) > best) { best = v; code = 1; }
+        if ((v = (c - s) * i2) > best) { best = v; code = 2; }
+        if ((v = (c - sw) * i3) > best) { best = v; code = 3; }
+        if ((v = (c - cw) * i4) > best) { best = v; code = 4; }
+        if ((v = (c - nw) * i5) > best) { best = v; code = 5; }
+        if ((v = (c - n) * i6) > best) { best = v; code = 6; }
+        if ((v = (c - ne) * i7) > best) { best = v; code = 7; }
+        if (code === NO_FLOW && inc !== undefined && inc[row + x] > 0) code = flatDirection(z, inc, row + x, offsets, inv);
+        dir[row + x] = code;
+      } else {
+        dir[row + x] = NO_FLOW;
       }
-      let best = 0, code = NO_FLOW, s: number;
-      if ((s = (zc - z[i + 1]) * i0) > best) { best = s; code = 0; }
-      if ((s = (zc - z[i + w + 1]) * i1) > best) { best = s; code = 1; }
-      if ((s = (zc - z[i + w]) * i2) > best) { best = s; code = 2; }
-      if ((s = (zc - z[i + w - 1]) * i3) > best) { best = s; code = 3; }
-      if ((s = (zc - z[i - 1]) * i4) > best) { best = s; code = 4; }
-      if ((s = (zc - z[i - w - 1]) * i5) > best) { best = s; code = 5; }
-      if ((s = (zc - z[i - w]) * i6) > best) { best = s; code = 6; }
-      if ((s = (zc - z[i - w + 1]) * i7) > best) { best = s; code = 7; }
-      if (code === NO_FLOW && inc !== undefined && inc[i] > 0) code = flatDirection(z, inc, i, offsets, inv);
-      dir[i] = code;
+      nw = n; n = ne; cw = c; c = ce; sw = s; s = se;
     }
   }
   return { data: dir, width: w, height: h };

@@ -63,79 +63,70 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
   const result = { increments, flatCells, flats: 0, unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
   if (flatCells === 0) return result;
 
-  // 2. Number the flats by breadth-first search; `members` holds each flat's cells contiguously.
-  //    Flat cells are interior, so their eight offsets never leave the grid.
+  // 2. Number the flats by breadth-first search (`members` is the queue). Flat cells are interior, so
+  //    their eight offsets never leave the grid; a flat neighbour always has the cell's elevation, so
+  //    only off-flat neighbours tell apart the edges: higher ones make a high edge (step 1 from higher
+  //    terrain, kept in `increments` for now), equal ones a way out (step 1 towards lower terrain,
+  //    collected in `queue`).
   const members = new Int32Array(flatCells);
+  const queue = new Int32Array(flatCells);
   let filled = 0;
   let flats = 0;
+  let outletSide = 0;
   for (let i = 0; i < n; i++) {
     if (label[i] !== -1) continue;
     label[i] = ++flats;
     members[filled++] = i;
     for (let head = filled - 1; head < filled; head++) {
-      const c = members[head];
+      const c = members[head], zc = z[c];
+      let higher = false, way = false;
       for (let k = 0; k < 8; k++) {
         const j = c + offsets[k];
-        if (label[j] === -1) {
+        const lj = label[j];
+        if (lj === -1) {
           label[j] = flats;
           members[filled++] = j;
+        } else if (lj === 0) {
+          if (z[j] > zc) higher = true;
+          else way = true; // not lower, or c would not be flat
         }
       }
+      if (higher) increments[c] = 1;
+      if (way) queue[outletSide++] = c;
     }
   }
   signal?.throwIfAborted();
 
-  // 3. Steps from higher terrain, from 1 at flat cells with a higher neighbour, kept in `increments`
-  //    for now; the largest per flat in `maxAway`. A flat without higher neighbours keeps 0 throughout.
-  const queue = new Int32Array(flatCells);
+  // 3. Steps from higher terrain, breadth-first from the high edges (moved to the front of `members`,
+  //    which becomes the queue); the largest per flat in `maxAway`. A flat without higher neighbours
+  //    keeps 0 throughout.
   const maxAway = new Int32Array(flats + 1);
   let tail = 0;
-  for (let m = 0; m < flatCells; m++) {
-    const c = members[m], zc = z[c];
-    for (let k = 0; k < 8; k++) {
-      if (z[c + offsets[k]] > zc) {
-        increments[c] = 1;
-        queue[tail++] = c;
-        break;
-      }
-    }
-  }
+  for (let m = 0; m < flatCells; m++) if (increments[members[m]] === 1) members[tail++] = members[m];
   for (let head = 0; head < tail; head++) {
-    const c = queue[head], next = increments[c] + 1;
-    if (next - 1 > maxAway[label[c]]) maxAway[label[c]] = next - 1;
+    const c = members[head], away = increments[c], flat = label[c];
+    if (away > maxAway[flat]) maxAway[flat] = away;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
       if (label[j] > 0 && increments[j] === 0) {
-        increments[j] = next;
-        queue[tail++] = j;
+        increments[j] = away + 1;
+        members[tail++] = j;
       }
     }
   }
   signal?.throwIfAborted();
 
-  // 4. Steps towards lower terrain, level by level from the flat cells beside a draining cell of
-  //    equal elevation (step 1); a visited cell's label turns negative. The final increment replaces
-  //    the away-steps in place.
-  tail = 0;
-  for (let m = 0; m < flatCells; m++) {
-    const c = members[m], zc = z[c];
-    for (let k = 0; k < 8; k++) {
-      const j = c + offsets[k];
-      if (label[j] === 0 && z[j] === zc) {
-        label[c] = -label[c];
-        queue[tail++] = c;
-        break;
-      }
-    }
-  }
+  // 4. Steps towards lower terrain, level by level from the cells beside a way out; a visited cell's
+  //    label turns negative. The final increment replaces the away-steps in place.
+  for (let m = 0; m < outletSide; m++) label[queue[m]] = -label[queue[m]];
+  tail = outletSide;
   let maxIncrement = 0;
   for (let head = 0, step = 1; head < tail; step++) {
     const levelEnd = tail;
     for (; head < levelEnd; head++) {
       const c = queue[head];
-      const flat = -label[c];
       const away = increments[c];
-      const inc = 2 * step + (away === 0 ? 0 : maxAway[flat] - away);
+      const inc = 2 * step + (away === 0 ? 0 : maxAway[-label[c]] - away);
       increments[c] = inc;
       if (inc > maxIncrement) maxIncrement = inc;
       for (let k = 0; k < 8; k++) {
@@ -151,16 +142,15 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
   // 5. Flats the search never reached have no way out: clear their away-steps and count them.
   let unresolvedCells = 0;
   let unresolvedFlats = 0;
-  let lastFlat = 0;
-  for (let m = 0; m < flatCells; m++) {
-    const c = members[m];
-    if (label[c] > 0) {
-      increments[c] = 0;
-      unresolvedCells++;
-      if (label[c] !== lastFlat) {
-        lastFlat = label[c];
-        unresolvedFlats++;
-      }
+  const counted = new Uint8Array(flats + 1);
+  for (let i = 0; i < n; i++) {
+    const l = label[i];
+    if (l <= 0) continue;
+    increments[i] = 0;
+    unresolvedCells++;
+    if (counted[l] === 0) {
+      counted[l] = 1;
+      unresolvedFlats++;
     }
   }
   return { ...result, flats, unresolvedFlats, unresolvedCells, maxIncrement };

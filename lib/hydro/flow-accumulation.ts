@@ -4,6 +4,9 @@ import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { D8_DX, D8_DY, NO_FLOW } from "@/lib/hydro/neighbours";
 import { ABORT_CHECK_CELLS, ABORT_CHECK_ROWS } from "@/lib/hydro/cancellation";
 
+/** Donor count of a cell already appended to the order (a real count is at most 8). */
+const DONE = 255;
+
 export interface FlowAccumulation {
   /** contributing cells of each cell, itself included; 0 on nodata. Uint32: exact to 4.29·10⁹ cells,
    *  where Float32 stops counting exactly past 2²⁴ ≈ 1.7·10⁷ (a 4096² grid) */
@@ -78,21 +81,26 @@ export function flowAccumulation(
     }
   }
 
-  // Kahn's order: `order` is its own queue; a cell is appended when its last donor has passed on.
+  // Kahn's order, walked along the flow: scan for sources in row order and follow each one downstream
+  // for as long as the cell reached has no donor left to wait for. Each cell is appended to `order`
+  // once, after all its donors, and the walks keep memory access local. A passed cell is marked DONE.
   const order = new Int32Array(validCells);
   let tail = 0;
-  for (let i = 0; i < n; i++) {
-    if (donors[i] === 0 && cells[i] !== 0) order[tail++] = i;
-  }
-  for (let head = 0; head < tail; head++) {
-    if ((head & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
-    const c = order[head];
-    const d = dir[c];
-    if (d === NO_FLOW) continue;
-    const t = c + offsets[d];
-    cells[t] += cells[c];
-    areaM2[t] += areaM2[c];
-    if (--donors[t] === 0) order[tail++] = t;
+  for (let s = 0; s < n; s++) {
+    if (donors[s] !== 0 || cells[s] === 0) continue; // waiting for donors, passed already, or nodata
+    if ((s & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
+    let c = s;
+    for (;;) {
+      order[tail++] = c;
+      donors[c] = DONE;
+      const d = dir[c];
+      if (d === NO_FLOW) break;
+      const t = c + offsets[d];
+      cells[t] += cells[c];
+      areaM2[t] += areaM2[c];
+      if (--donors[t] !== 0) break;
+      c = t;
+    }
   }
   if (tail !== validCells) {
     throw new RangeError(`the directions form a cycle through ${validCells - tail} cells; D8 over a DEM cannot`);

@@ -28,7 +28,7 @@ export interface PriorityFloodResult {
   plainQueueCells: number;
   /** cells expanded on a slope without passing through the priority queue (`traceSlopes`) */
   slopeTracedCells: number;
-  /** largest number of cells the priority queue held at once (its memory is 8 bytes per entry) */
+  /** largest number of cells the priority queue held at once (8 bytes per entry, buckets grow by doubling) */
   heapPeak: number;
 }
 
@@ -54,60 +54,72 @@ export function nextUpFloat32(z: number): number {
   return f32Scratch[0];
 }
 
-/** Min-heap of (elevation, cell index) in two parallel typed arrays: no object per cell. */
-class CellHeap {
-  keys = new Float32Array(INITIAL_QUEUE_CAPACITY);
-  cells = new Int32Array(INITIAL_QUEUE_CAPACITY);
+/** Elevation bits → an Int32 whose signed order is the Float32 order (negative floats have their
+ *  magnitude bits flipped). −0 maps just below +0; the queue clamps it, the two being equal heights. */
+function orderedKey(bits: number): number {
+  return bits ^ ((bits >> 31) & 0x7fffffff);
+}
+
+/**
+ * Priority queue of (elevation, cell) for keys that never fall below the last key taken out, as in
+ * Priority-Flood, where the flood level only rises: a radix heap (Ahuja, Mehlhorn, Orlin & Tarjan 1990,
+ * J. ACM 37(2):213–223). Bucket b holds keys whose highest bit differing from the last key taken is
+ * b − 1; taking from an empty bucket 0 refills it from the lowest non-empty bucket. Each entry moves
+ * down at most 32 times, and in practice a few, against ~log₂(size) moves per operation of a binary
+ * heap. Keys and cells sit in parallel typed arrays: no object per cell.
+ */
+class RadixQueue {
+  private keys: Int32Array[] = [];
+  private cells: Int32Array[] = [];
+  private counts = new Int32Array(33);
+  /** last key taken out; starts at the lowest key so any first key is accepted */
+  private last = -0x80000000;
   size = 0;
   peak = 0;
 
+  constructor() {
+    for (let b = 0; b <= 32; b++) {
+      this.keys.push(new Int32Array(INITIAL_QUEUE_CAPACITY >> 4));
+      this.cells.push(new Int32Array(INITIAL_QUEUE_CAPACITY >> 4));
+    }
+  }
+
   push(key: number, cell: number): void {
-    if (this.size === this.keys.length) this.grow();
-    const keys = this.keys, cells = this.cells;
-    let i = this.size++;
-    if (this.size > this.peak) this.peak = this.size;
-    while (i > 0) {
-      const parent = (i - 1) >> 1;
-      const pk = keys[parent];
-      if (pk <= key) break;
-      keys[i] = pk;
-      cells[i] = cells[parent];
-      i = parent;
-    }
-    keys[i] = key;
-    cells[i] = cell;
+    if (key < this.last) key = this.last; // only −0 after +0 can get here
+    this.append(32 - Math.clz32(key ^ this.last), key, cell);
+    if (++this.size > this.peak) this.peak = this.size;
   }
 
-  /** removes the lowest entry and returns its cell index; the caller checks `size > 0` first */
+  /** removes an entry with the lowest key and returns its cell; the caller checks `size > 0` first */
   pop(): number {
-    const keys = this.keys, cells = this.cells;
-    const top = cells[0];
-    const n = --this.size;
-    if (n === 0) return top;
-    const key = keys[n], cell = cells[n];
-    let i = 0;
-    for (;;) {
-      let child = 2 * i + 1;
-      if (child >= n) break;
-      if (child + 1 < n && keys[child + 1] < keys[child]) child++;
-      const ck = keys[child];
-      if (ck >= key) break;
-      keys[i] = ck;
-      cells[i] = cells[child];
-      i = child;
-    }
-    keys[i] = key;
-    cells[i] = cell;
-    return top;
+    if (this.counts[0] === 0) this.refill();
+    this.size--;
+    return this.cells[0][--this.counts[0]];
   }
 
-  private grow(): void {
-    const keys = new Float32Array(this.keys.length * 2);
-    const cells = new Int32Array(this.cells.length * 2);
-    keys.set(this.keys);
-    cells.set(this.cells);
-    this.keys = keys;
-    this.cells = cells;
+  private refill(): void {
+    let b = 1;
+    while (this.counts[b] === 0) b++;
+    const keys = this.keys[b], cells = this.cells[b], count = this.counts[b];
+    let low = keys[0];
+    for (let i = 1; i < count; i++) if (keys[i] < low) low = keys[i];
+    this.last = low;
+    this.counts[b] = 0;
+    // every key here shares its bits above b − 1 with `low`, so it lands in a bucket below b
+    for (let i = 0; i < count; i++) this.append(32 - Math.clz32(keys[i] ^ low), keys[i], cells[i]);
+  }
+
+  private append(b: number, key: number, cell: number): void {
+    const at = this.counts[b]++;
+    if (at === this.keys[b].length) {
+      const keys = new Int32Array(at * 2), cells = new Int32Array(at * 2);
+      keys.set(this.keys[b]);
+      cells.set(this.cells[b]);
+      this.keys[b] = keys;
+      this.cells[b] = cells;
+    }
+    this.keys[b][at] = key;
+    this.cells[b][at] = cell;
   }
 }
 
@@ -176,7 +188,8 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   const signal = options.signal;
   const n = w * h;
   const closed = new Uint8Array(n);
-  const heap = new CellHeap();
+  const heap = new RadixQueue();
+  const bits = new Int32Array(z.buffer, z.byteOffset, n);
   const pit = new CellQueue();
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
@@ -189,7 +202,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
     closed[i] = 1;
     const zi = z[i];
     if (zi === zi) {
-      heap.push(zi, i);
+      heap.push(orderedKey(bits[i]), i);
       seedCells++;
     }
   };
@@ -220,7 +233,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
           const j = ny * w + nx;
           if (closed[j] === 0) {
             closed[j] = 1;
-            heap.push(z[j], j);
+            heap.push(orderedKey(bits[j]), j);
             seedCells++;
           }
         }
@@ -252,7 +265,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
         }
       }
       if (below) {
-        heap.push(zt, t);
+        heap.push(orderedKey(bits[t]), t);
         continue;
       }
       slopeTracedCells++;
@@ -290,7 +303,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
       } else if (traceSlopes) {
         slope.push(j);
       } else {
-        heap.push(zj, j);
+        heap.push(orderedKey(bits[j]), j);
       }
     }
   }
