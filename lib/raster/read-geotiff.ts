@@ -238,7 +238,12 @@ export async function readDem(path: string, options: ReadDemOptions = {}): Promi
   const sparseValue = nodata === undefined && d.info.nodata === null ? 0 : NaN;
 
   const decoder = await makeBlockDecoder(layout);
-  const out = new Float32Array(width * height);
+  let out: Float32Array;
+  try {
+    out = new Float32Array(width * height);
+  } catch {
+    throw new RasterError("too-large", `cannot allocate ${width} × ${height} Float32 cells on this machine`);
+  }
   const fh = await open(path, "r");
   try {
     for (let by = 0; by < down; by++) {

@@ -1,6 +1,6 @@
 import { afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from "vitest";
 import { checkTiffLayout } from "@/lib/raster/tiff-structure";
-import { readDem } from "@/lib/raster/read-geotiff";
+import { inspectGeoTiff, readDem } from "@/lib/raster/read-geotiff";
 import { RasterError } from "@/lib/raster/errors";
 import { fixture } from "./gdal-reference";
 
@@ -51,6 +51,16 @@ describe("readDem() on hostile and unsupported files", () => {
   it("the control file the broken ones derive from reads fine (derived)", async () => {
     const dem = await readDem(fixture("hostile/control.tif"));
     expect(dem.elevation.data.every((v) => v === 1)).toBe(true);
+  });
+});
+
+describe("inspectGeoTiff() on the 100000 × 100000 declaration", () => {
+  it("reports its size from the header alone when the budget allows it, allocating no pixels (derived)", async () => {
+    const before = process.memoryUsage().rss;
+    const info = await inspectGeoTiff(fixture("hostile/huge-declared.tif"), { cellBudget: 2e10 });
+    expect([info.width, info.height]).toEqual([100000, 100000]);
+    // 1e10 Float32 cells would be 40 GB; the call may grow the process by a few MB at most
+    expect(process.memoryUsage().rss - before).toBeLessThan(100e6);
   });
 });
 
