@@ -3,7 +3,7 @@
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { D8_DX, D8_DY, NO_FLOW } from "@/lib/hydro/neighbours";
-import { d8StepLengths } from "@/lib/hydro/d8";
+import { d8StepTable } from "./step-table";
 
 /** Cells between two looks at the abort signal. */
 const ABORT_CHECK_CELLS = 1 << 20;
@@ -17,17 +17,14 @@ export function longestFlowPath(directions: Grid<Uint8Array>, order: Int32Array,
   const { data: dir, width: w, height: h } = directions;
   if (cellGeometry.dx.length !== h) throw new RangeError(`cell geometry has ${cellGeometry.dx.length} rows, the grid has ${h}`);
   const length = new Float32Array(w * h);
-  const steps = new Float64Array(8);
+  const steps = d8StepTable(cellGeometry);
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
-  let row = -1;
   for (let t = 0; t < order.length; t++) {
     if ((t & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
     const c = order[t], k = dir[c];
     if (k === NO_FLOW) continue;
-    const y = Math.floor(c / w);
-    if (y !== row) { d8StepLengths(cellGeometry, y, steps); row = y; }
-    const d = c + offsets[k], reach = length[c] + steps[k];
+    const d = c + offsets[k], reach = length[c] + steps[8 * ((c / w) | 0) + k];
     if (reach > length[d]) length[d] = reach;
   }
   return length;

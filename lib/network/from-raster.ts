@@ -3,7 +3,7 @@
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { D8_DX, D8_DY, NO_FLOW } from "@/lib/hydro/neighbours";
-import { d8StepLengths } from "@/lib/hydro/d8";
+import { d8StepTable } from "./step-table";
 import { StreamLink, StreamNetwork } from "./model";
 
 /** Grid placement in CRS units: origin = outer corner of the top-left cell; rows go south. */
@@ -123,7 +123,7 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
   // Pass 2: walk each link down to its end.
   const endCell = new Int32Array(count);
   const links: StreamLink[] = new Array(count);
-  const steps = new Float64Array(8);
+  const steps = d8StepTable(cellGeometry);
   const { originX, originY, pixelSizeX, pixelSizeY } = transform;
   const vertices: number[] = [];
   for (let id = 0; id < count; id++) {
@@ -136,7 +136,7 @@ export function networkFromRaster(input: RasterNetworkInput): RasterNetwork {
       vertices.push(originX + (x + 0.5) * pixelSizeX, originY - (y + 0.5) * pixelSizeY);
       const d = next(c);
       if (d < 0) { areaCell = c; break; }
-      lengthM += d8StepLengths(cellGeometry, y, steps)[dir[c]];
+      lengthM += steps[8 * y + dir[c]];
       const j = linkAt(d);
       if (j >= 0) {
         areaCell = breakOnly[j] ? d : c;
