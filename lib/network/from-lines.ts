@@ -95,7 +95,7 @@ class UnionFind {
   }
 }
 
-/** Uniform grid over planar metres: items go into the cells their box covers, queries read the cells a box covers. */
+/** Uniform grid over planar metres: points or sampled segments go into cells, a query reads the cells a box covers. */
 class SpatialHash {
   private readonly cells = new Map<number, number[]>();
   private readonly ny: number;
@@ -104,14 +104,22 @@ class SpatialHash {
   }
   private ix(x: number): number { return Math.floor((x - this.minX) / this.cell); }
   private iy(y: number): number { return Math.floor((y - this.minY) / this.cell); }
-  insert(item: number, x0: number, y0: number, x1: number, y1: number): void {
-    for (let i = this.ix(x0); i <= this.ix(x1); i++) {
-      for (let j = this.iy(y0); j <= this.iy(y1); j++) {
-        const key = i * this.ny + j;
-        const list = this.cells.get(key);
-        if (list) list.push(item);
-        else this.cells.set(key, [item]);
-      }
+  private add(item: number, i: number, j: number): void {
+    const key = i * this.ny + j;
+    const list = this.cells.get(key);
+    if (list === undefined) this.cells.set(key, [item]);
+    else if (list[list.length - 1] !== item) list.push(item);
+  }
+  insertPoint(item: number, x: number, y: number): void {
+    this.add(item, this.ix(x), this.iy(y));
+  }
+  /** Into the cells of points sampled along the segment at most half a cell apart, so every point of the
+   *  segment is within a quarter cell of a sample; work grows with length, not with the bounding box. */
+  insertSegment(item: number, x0: number, y0: number, x1: number, y1: number): void {
+    const steps = Math.ceil((2 * Math.hypot(x1 - x0, y1 - y0)) / this.cell);
+    for (let k = 0; k <= steps; k++) {
+      const t = steps === 0 ? 0 : k / steps;
+      this.add(item, this.ix(x0 + t * (x1 - x0)), this.iy(y0 + t * (y1 - y0)));
     }
   }
   query(x0: number, y0: number, x1: number, y1: number, visit: (item: number) => void): void {
@@ -222,7 +230,7 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
   const extent = Math.max(maxX - minX, maxY - minY, 1);
   const endCell = Math.max(tol, extent / MAX_CELLS_PER_AXIS);
   const endHash = new SpatialHash(minX - endCell, minY - endCell, maxY + endCell, endCell);
-  for (let e = 0; e < nEnd; e++) endHash.insert(e, ex[e], ey[e], ex[e], ey[e]);
+  for (let e = 0; e < nEnd; e++) endHash.insertPoint(e, ex[e], ey[e]);
   const uf = new UnionFind(nEnd);
   for (let e = 0; e < nEnd; e++) {
     endHash.query(ex[e] - tol, ey[e] - tol, ex[e] + tol, ey[e] + tol, (f) => {
@@ -262,7 +270,7 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
   const segLine: number[] = [], segIndex: number[] = [];
   planarLines.forEach((p, l) => {
     for (let i = 2; i < p.length; i += 2) {
-      segHash.insert(segLine.length, Math.min(p[i - 2], p[i]) - tol, Math.min(p[i - 1], p[i + 1]) - tol, Math.max(p[i - 2], p[i]) + tol, Math.max(p[i - 1], p[i + 1]) + tol);
+      segHash.insertSegment(segLine.length, p[i - 2], p[i - 1], p[i], p[i + 1]);
       segLine.push(l);
       segIndex.push(i / 2 - 1);
     }
@@ -271,7 +279,9 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
   const splits = new Map<number, Map<number, { seg: number; t: number; d: number }>>();
   for (let n = 0; n < nNodes; n++) {
     const px = nodePX[n], py = nodePY[n];
-    segHash.query(px - tol, py - tol, px + tol, py + tol, (s) => {
+    // a segment point within tol of the node has a sample within tol + segCell/4 of it
+    const r = tol + segCell / 4;
+    segHash.query(px - r, py - r, px + r, py + r, (s) => {
       const l = segLine[s];
       if (nodeOfEnd[2 * l] === n || nodeOfEnd[2 * l + 1] === n) return;
       const p = planarLines[l], k = 2 * segIndex[s];
@@ -467,9 +477,10 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
   // --- 6. a root per component -------------------------------------------------------------------------
   const outlets: TopologyReport["outlets"] = [];
   const roots: number[] = [];
+  const membersOf = new Map<number, number[]>(analysed.map((c) => [c, []]));
+  for (let n = 0; n < nNodes; n++) if (adj[n].length > 0) membersOf.get(cuf.find(n))?.push(n);
   for (const c of analysed) {
-    const members: number[] = [];
-    for (let n = 0; n < nNodes; n++) if (adj[n].length > 0 && cuf.find(n) === c) members.push(n);
+    const members = membersOf.get(c)!;
     const terminals = members.filter((n) => adj[n].length === 1 || hintedEnd[n] > 0);
     const candidates = terminals.length > 0 ? terminals : members;
     let root = -1;
