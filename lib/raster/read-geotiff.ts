@@ -106,6 +106,8 @@ function describe(layout: TiffLayout, options: ReadDemOptions): Described {
       : `${bits}-bit ${format === 3 ? "floating-point" : format === 2 ? "signed" : format === 1 ? "unsigned" : `format-${format}`} samples`;
     throw new RasterError("unsupported", `${what} (Int8/16/32, UInt8/16/32, Float32/64 are read)`);
   }
+  const mixed = layout.bitsPerSample.some((b, i) => b !== bits || layout.sampleFormat[i] !== format);
+  if (mixed) throw new RasterError("unsupported", "bands of different sample types");
   if (layout.planarConfiguration !== 1 && layout.planarConfiguration !== 2) {
     throw new RasterError("unsupported", `planar configuration ${layout.planarConfiguration}`);
   }
