@@ -22,6 +22,9 @@ export function decodeTiffLzw(input: Uint8Array, out: Uint8Array): number {
     first[i] = i;
     length[i] = 1;
   }
+  // two zero bytes of padding let the bit reader load three bytes without a bounds test per code
+  const bytes = new Uint8Array(input.length + 2);
+  bytes.set(input);
   const totalBits = input.length * 8;
   let bitPos = 0;
   let width = 9;
@@ -37,7 +40,7 @@ export function decodeTiffLzw(input: Uint8Array, out: Uint8Array): number {
     }
     // read `width` bits MSB-first from up to three bytes
     const byte = bitPos >>> 3;
-    const word = (input[byte] << 16) | ((input[byte + 1] ?? 0) << 8) | (input[byte + 2] ?? 0);
+    const word = (bytes[byte] << 16) | (bytes[byte + 1] << 8) | bytes[byte + 2];
     const code = (word >>> (24 - (bitPos & 7) - width)) & ((1 << width) - 1);
     bitPos += width;
     if (code === EOI) return pos;
