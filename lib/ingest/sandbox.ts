@@ -1,0 +1,161 @@
+// Runs untrusted-input work in a child Node process that the parent can always stop: a V8 heap limit
+// (--max-old-space-size), an RSS watchdog reading VmRSS from /proc/<pid>/status (proc(5)), and a wall-clock
+// deadline, both enforced with SIGKILL, which the child cannot catch or delay (POSIX signal.h).
+import { spawn } from "node:child_process";
+import { existsSync } from "node:fs";
+import { readFile } from "node:fs/promises";
+import path from "node:path";
+import { READY, type SandboxReply } from "@/lib/ingest/sandbox-child";
+
+export interface SandboxLimits {
+  /** Wall-clock budget from spawn to answer, start-up included. */
+  timeoutMs: number;
+  /** V8 old-generation heap limit of the child. */
+  maxOldSpaceMb: number;
+  /** Resident set size past which the watchdog kills the child (catches Buffers and native memory too). */
+  rssCapMb: number;
+  /** Watchdog sampling period. */
+  pollMs: number;
+}
+
+/** 8 s leaves room inside the 10 s an upload answer may take; 1 GiB of heap fits the largest GeoJSON text the
+ *  vector readers accept (256 MB) parsed; the RSS cap adds room for Buffers and the runtime itself. */
+export const DEFAULT_SANDBOX_LIMITS: SandboxLimits = { timeoutMs: 8_000, maxOldSpaceMb: 1024, rssCapMb: 1536, pollMs: 25 };
+
+/** Bytes of the child's stderr kept for a crash report (the tail, where the fatal message is). */
+const STDERR_TAIL = 4096;
+
+export class InspectionTimeoutError extends Error {
+  readonly code = "inspection_timeout";
+  constructor(readonly timeoutMs: number) {
+    super(`the file inspection did not finish within ${timeoutMs} ms and was stopped`);
+    this.name = "InspectionTimeoutError";
+  }
+}
+
+export class InspectionMemoryError extends Error {
+  readonly code = "inspection_memory";
+  constructor(readonly limit: "rss-cap" | "heap-limit", readonly capMb: number, readonly peakRssBytes: number) {
+    super(`the file inspection needed more than ${capMb} MB of memory (${limit}) and was stopped`);
+    this.name = "InspectionMemoryError";
+  }
+}
+
+/** The child refused the file with a typed error (`code`/`detail` from RasterError, VectorError, …), or died. */
+export class InspectionFailedError extends Error {
+  constructor(readonly code: string, readonly detail: string, readonly childErrorName = "Error") {
+    super(`${code}: ${detail}`);
+    this.name = "InspectionFailedError";
+  }
+}
+
+export interface SandboxRun<T> {
+  result: T;
+  elapsedMs: number;
+  /** Highest VmRSS the watchdog saw (0 where /proc is not available). */
+  peakRssBytes: number;
+}
+
+export interface SandboxOptions {
+  /** Directory holding package.json, tsconfig.json and node_modules/tsx; the child runs there. Defaults to the
+   *  working directory, which is the project root under `next start`, the worker and vitest alike. */
+  projectRoot?: string;
+}
+
+async function readRssBytes(pid: number): Promise<number | null> {
+  try {
+    const status = await readFile(`/proc/${pid}/status`, "utf8");
+    const m = /^VmRSS:\s+(\d+)\s+kB/m.exec(status);
+    return m ? Number(m[1]) * 1024 : null;
+  } catch {
+    return null; // gone already, or no procfs
+  }
+}
+
+function checkLimits(l: SandboxLimits): void {
+  for (const [name, v] of Object.entries(l)) {
+    if (!Number.isFinite(v) || v <= 0) throw new RangeError(`sandbox limit ${name} must be a positive number, got ${v}`);
+  }
+}
+
+/**
+ * Spawns `process.execPath --max-old-space-size=N --import tsx <entry>` (tsx compiles the TypeScript child on
+ * the fly, so this works the same from vitest, the tsx worker and a `next start` server whose bundle holds no
+ * child file), sends it `request` over IPC once it reports ready, and returns its one reply. The child gets an
+ * empty environment apart from the tsconfig path, so no server secret reaches code that parses uploads.
+ */
+export function runInSandbox<T>(
+  entry: string, request: unknown, limits: Partial<SandboxLimits> = {}, options: SandboxOptions = {},
+): Promise<SandboxRun<T>> {
+  const l = { ...DEFAULT_SANDBOX_LIMITS, ...limits };
+  checkLimits(l);
+  const root = path.resolve(options.projectRoot ?? process.cwd());
+  const entryPath = path.resolve(root, entry);
+  if (!existsSync(entryPath)) throw new Error(`sandbox entry ${entryPath} does not exist`);
+  const started = performance.now();
+
+  return new Promise<SandboxRun<T>>((resolve, reject) => {
+    const child = spawn(process.execPath, [`--max-old-space-size=${Math.round(l.maxOldSpaceMb)}`, "--import", "tsx", entryPath], {
+      cwd: root,
+      env: { TSX_TSCONFIG_PATH: path.join(root, "tsconfig.json") } as unknown as NodeJS.ProcessEnv,
+      stdio: ["ignore", "ignore", "pipe", "ipc"],
+      serialization: "advanced", // structured clone: NaN nodata and typed arrays survive, unlike JSON
+    });
+    let reply: SandboxReply | undefined;
+    let killedFor: "timeout" | "memory" | undefined;
+    let peakRss = 0;
+    let stderr = "";
+    let sampling = false;
+
+    const kill = (why: "timeout" | "memory") => {
+      if (reply || killedFor) return;
+      killedFor = why;
+      child.kill("SIGKILL");
+    };
+    const deadline = setTimeout(() => kill("timeout"), l.timeoutMs);
+    const watchdog = setInterval(() => {
+      if (sampling || child.pid === undefined) return;
+      sampling = true;
+      void readRssBytes(child.pid).then((rss) => {
+        sampling = false;
+        if (rss === null) return;
+        peakRss = Math.max(peakRss, rss);
+        if (rss > l.rssCapMb * 1024 * 1024) kill("memory");
+      });
+    }, l.pollMs);
+
+    child.stderr!.setEncoding("utf8");
+    child.stderr!.on("data", (s: string) => {
+      stderr = (stderr + s).slice(-STDERR_TAIL);
+    });
+    child.on("message", (message: unknown) => {
+      if (message === READY) {
+        child.send(request as never);
+        return;
+      }
+      if (reply || killedFor) return;
+      reply = message as SandboxReply;
+      child.kill("SIGKILL"); // the answer is in; nothing the child does afterwards matters
+    });
+    child.once("error", (err) => {
+      clearTimeout(deadline);
+      clearInterval(watchdog);
+      reject(err);
+    });
+    child.once("close", (exitCode, signal) => {
+      clearTimeout(deadline);
+      clearInterval(watchdog);
+      const elapsedMs = performance.now() - started;
+      if (killedFor === "memory") return reject(new InspectionMemoryError("rss-cap", l.rssCapMb, peakRss));
+      if (killedFor === "timeout") return reject(new InspectionTimeoutError(l.timeoutMs));
+      if (reply?.ok) return resolve({ result: reply.result as T, elapsedMs, peakRssBytes: peakRss });
+      if (reply) return reject(new InspectionFailedError(reply.error.code, reply.error.detail, reply.error.name));
+      // No answer: V8 aborts (SIGABRT, or exit 134) with "heap out of memory" when the heap limit is hit.
+      if (signal === "SIGABRT" || exitCode === 134 || /heap out of memory|Allocation failed/i.test(stderr)) {
+        return reject(new InspectionMemoryError("heap-limit", l.maxOldSpaceMb, peakRss));
+      }
+      const lastLine = stderr.trim().split("\n").filter(Boolean).at(-1) ?? "no output";
+      reject(new InspectionFailedError("inspector_crashed", `the inspection process ended without an answer (${signal ?? `exit ${exitCode}`}): ${lastLine}`));
+    });
+  });
+}
