@@ -134,6 +134,15 @@ describe("networkFromLines()", () => {
     expect(report.attributeConflicts).toBe(0);
   });
 
+  test("a tributary ending on a 1000 km diagonal segment splits it where it touches (regression: hashing segments by bounding box)", () => {
+    const long = L(0, 0, 707107, 707107);
+    const trib = L(350000 - 300, 350000 + 300, 350000 + 0.2, 350000 - 0.2);
+    const { network, report } = networkFromLines([long, trib], { ...base, outlet: { x: X0, y: Y0, radiusM: 10 } });
+    expect(report.midLineJunctions).toBe(1);
+    expect(network.links).toHaveLength(3);
+    expectClose(report.networkLengthM, 1e6 + Math.hypot(300.2, 300.2), 1); // the split moves the line by < 0.2 m (derived)
+  });
+
   test("on longitude/latitude, one degree along the equator is a·π/180 = 111 319.49 m long (derived, WGS84)", () => {
     const { network } = networkFromLines([Float64Array.from([0, 0, 0.5, 0, 1, 0])], {
       crs: "+proj=longlat +datum=WGS84 +no_defs", snapToleranceM: 1, dangleLengthM: 0, components: "each",

@@ -11,7 +11,10 @@ import { upstreamLinks, type StreamNetwork } from "@/lib/network/model";
 import { hortonTable } from "@/lib/network/horton";
 import { strahlerStreams } from "@/lib/network/strahler";
 import { runDrainage } from "@/lib/pipelines/drainage";
-import { runNetwork, type NetworkSummary } from "@/lib/pipelines/network";
+import { networkParamsSchema, runNetwork, type NetworkSummary } from "@/lib/pipelines/network";
+import { crsFromEpsg } from "@/lib/raster/crs";
+import { writeGeoTiff } from "@/lib/raster/write-geotiff";
+import yazl from "yazl";
 import { expectClose } from "@/tests/helpers/expect-close";
 
 const LONLAT = "+proj=longlat +datum=WGS84 +no_defs";
@@ -168,6 +171,65 @@ describe("runNetwork()", () => {
     expect(dd.basinAreaKm2).toBeGreaterThan(150); // 0.2° × 0.1° near 45° N is about 175 km² (derived)
     expect(dd.basinAreaKm2).toBeLessThan(200);
     expectClose(summary.horton.area!.value, 4.261827, 1e-6); // a constant area scale leaves R_A unchanged (derived)
+  });
+});
+
+describe("runNetwork() inputs and parameters", () => {
+  const at = (x: number, y: number) => [E0 + x, N0 + y] as [number, number];
+  /** the stem (0,200)→(0,0) and two sources joining at (0,200), digitised downstream */
+  const tree: Line[] = [[at(0, 200), at(0, 100), at(0, 0)], [at(-100, 300), at(0, 200)], [at(100, 300), at(0, 200)]];
+  const utmCrs = { crs: { type: "name", properties: { name: "EPSG:32632" } } };
+
+  test("with a DEM and no outlet each part drains to its lowest end, and links get drops (derived)", async () => {
+    // z = 100 + y/10 on 10 m cells: the lowest line end is (0, 0)
+    const width = 40, height = 50, cell = 10;
+    const data = new Float32Array(width * height);
+    for (let r = 0; r < height; r++) for (let c = 0; c < width; c++) data[r * width + c] = 100 + (400 - (r + 0.5) * cell) / 10;
+    const demPath = path.join(tmp, "plane.tif");
+    await writeGeoTiff(demPath, { data, width, height }, { crs: crsFromEpsg(32632), transform: { originX: E0 - 200, originY: N0 + 400, pixelSizeX: cell, pixelSizeY: cell }, rasterType: "PixelIsArea" });
+    const reversedTree = tree.map((l) => [...l].reverse());
+    const { summary } = await runNetwork({ geojson: featureCollection(reversedTree, utmCrs), demPath }, {});
+    expect(summary.topology.outlets[0]).toMatchObject({ x: E0, y: N0, rule: "lowest-end" });
+    expect(summary.topology.reversedPieces).toBe(3);
+    // the order-2 stem falls 20 m over 200 m; nearest-cell sampling is within half a cell, 0.5 m (derived)
+    expectClose(summary.orders[1].meanSlope!, 0.1, 0.5 / 200 * 2);
+  });
+
+  test("a zipped Shapefile with a flow-direction field gives the outlet and counts the lines digitised upstream (derived)", async () => {
+    const lines = [tree[0], [...tree[1]].reverse(), tree[2]];
+    const doc = { type: "FeatureCollection", features: lines.map((coordinates, i) => ({ type: "Feature", properties: { dir: i === 1 ? -1 : 1 }, geometry: { type: "LineString", coordinates } })) };
+    writeFileSync(path.join(tmp, "dir.geojson"), JSON.stringify(doc));
+    execFileSync("ogr2ogr", ["-f", "ESRI Shapefile", "-a_srs", "EPSG:32632", path.join(tmp, "dir.shp"), path.join(tmp, "dir.geojson")]);
+    const zip = new yazl.ZipFile();
+    for (const ext of ["shp", "shx", "dbf", "prj"]) zip.addFile(path.join(tmp, `dir.${ext}`), `dir.${ext}`);
+    zip.end();
+    const parts: Buffer[] = [];
+    for await (const part of zip.outputStream as AsyncIterable<Buffer>) parts.push(part);
+    const zipPath = path.join(tmp, "dir.zip");
+    writeFileSync(zipPath, Buffer.concat(parts));
+    const { summary } = await runNetwork({ zipPath }, { flowDirectionField: "dir" });
+    expect(summary.input.crs).toMatchObject({ from: "prj", geographic: false });
+    expect(summary.topology).toMatchObject({ reversedPieces: 1, attributeConflicts: 0 });
+    expect(summary.topology.outlets[0]).toMatchObject({ x: E0, y: N0, rule: "digitising" });
+    await expect(runNetwork({ zipPath }, { flowDirectionField: "nope" })).rejects.toThrow(/no feature has the property "nope"/);
+  });
+
+  test("the parameters schema applies its defaults and refuses values out of bounds (STANDARDS.md: validation failures are 422)", () => {
+    expect(networkParamsSchema.parse({})).toMatchObject({ snapToleranceM: 1, outletRadiusM: 100, dangleLengthM: 0, components: "each", confidence: 0.95 });
+    expect(networkParamsSchema.safeParse({ snapToleranceM: -1 }).success).toBe(false);
+    expect(networkParamsSchema.safeParse({ outlet: [200, 0] }).success).toBe(false);
+    expect(networkParamsSchema.safeParse({ idField: "id" }).success).toBe(false);
+    expect(networkParamsSchema.safeParse({ unknown: 1 }).success).toBe(false);
+  });
+
+  test("an aborted signal stops the run, and progress rises to the output stage (common practice)", async () => {
+    const controller = new AbortController();
+    controller.abort();
+    await expect(runNetwork({ geojson: featureCollection(tree, utmCrs) }, {}, { signal: controller.signal })).rejects.toThrow(/abort/i);
+    const seen: string[] = [];
+    await runNetwork({ geojson: featureCollection(tree, utmCrs) }, {}, { onProgress: (stage, f) => seen.push(`${stage}:${f}`) });
+    expect(seen[0]).toBe("read:0");
+    expect(seen[seen.length - 1]).toBe("output:1");
   });
 });
 
