@@ -19,7 +19,7 @@ export function Button({ variant = "secondary", size = "md", className = "", typ
   return (
     <button
       type={type}
-      className={`inline-flex items-center justify-center gap-1.5 rounded border font-medium transition-colors disabled:cursor-not-allowed ${sizing} ${VARIANTS[variant]} ${className}`}
+      className={`inline-flex items-center justify-center gap-1.5 whitespace-nowrap rounded border font-medium transition-colors disabled:cursor-not-allowed ${sizing} ${VARIANTS[variant]} ${className}`}
       {...rest}
     />
   );

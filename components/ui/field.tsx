@@ -93,13 +93,15 @@ export function SelectField({ label, hint, error, options, className = "", ...se
 
 export interface CheckboxGroupProps {
   legend: string;
+  /** What an error message is about, when not the legend ("The key" needs at least one scope). */
+  subject?: string;
   options: readonly { value: string; hint?: string }[];
   value: readonly string[];
   onChange: (next: string[]) => void;
   error?: string;
 }
 
-export function CheckboxGroup({ legend, options, value, onChange, error }: CheckboxGroupProps) {
+export function CheckboxGroup({ legend, subject = legend, options, value, onChange, error }: CheckboxGroupProps) {
   const id = useId();
   return (
     <fieldset aria-describedby={error === undefined ? undefined : `${id}-error`}>
@@ -124,7 +126,7 @@ export function CheckboxGroup({ legend, options, value, onChange, error }: Check
       </div>
       {error !== undefined && (
         <p id={`${id}-error`} className="mt-1 text-xs text-rust">
-          {sentence(legend, error)}
+          {sentence(subject, error)}
         </p>
       )}
     </fieldset>

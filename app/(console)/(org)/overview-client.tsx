@@ -24,7 +24,7 @@ export function OverviewPanel() {
   return (
     <>
       <PageHeader title={me.org.name} description={`Signed in as ${me.user?.name ?? me.user?.email ?? "—"}.`} />
-      <div className="grid gap-5 md:grid-cols-2">
+      <div className="grid items-start gap-5 md:grid-cols-2">
         <section className="card p-5" aria-labelledby="role-heading">
           <h2 id="role-heading">Your role: {me.role ?? "—"}</h2>
           <p className="mb-2 mt-1 text-graphite-muted">You may:</p>

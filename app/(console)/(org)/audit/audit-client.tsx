@@ -149,7 +149,7 @@ export function AuditPanel() {
             <table className="table-dense" aria-label="Audit entries" aria-busy={page.isFetching}>
               <thead>
                 <tr>
-                  <th scope="col">Time</th>
+                  <th scope="col">Time (UTC)</th>
                   <th scope="col">Action</th>
                   <th scope="col">Actor</th>
                   <th scope="col">Target</th>
@@ -168,18 +168,18 @@ export function AuditPanel() {
                 {page.data.items.map((event) => (
                   <tr key={event.id}>
                     <td className="whitespace-nowrap" title={event.at}>
-                      {formatInstantPrecise(event.at)}
+                      {formatInstantPrecise(event.at, false)}
                     </td>
                     <td>
                       <Badge tone={/fail|refus|denied/.test(event.action) ? "bad" : "neutral"}>
                         <span className="font-mono">{event.action}</span>
                       </Badge>
                     </td>
-                    <td>
-                      <span className="block">{event.actor.label}</span>
-                      <span className="text-xs text-graphite-muted">{event.actor.kind.replace("_", " ")}</span>
+                    <td className="whitespace-nowrap">
+                      {event.actor.label}{" "}
+                      <span className="text-xs text-graphite-muted">({event.actor.kind.replace("_", " ")})</span>
                     </td>
-                    <td className="max-w-[14rem] truncate font-mono text-xs" title={event.target ?? undefined}>
+                    <td className="max-w-[12rem] truncate font-mono text-xs" title={event.target ?? undefined}>
                       {event.target ?? "—"}
                     </td>
                     <td className="whitespace-nowrap font-mono text-xs">{event.ip ?? "—"}</td>
@@ -218,13 +218,18 @@ export function AuditPanel() {
   );
 }
 
+// One line per detail, wrapped rather than cut: details are what an auditor reads the row for.
 function DetailsCell({ details }: { details: Record<string, unknown> }) {
   const entries = Object.entries(details);
   if (entries.length === 0) return <td className="text-graphite-muted">—</td>;
-  const text = entries.map(([k, v]) => `${k}=${typeof v === "string" ? v : JSON.stringify(v)}`).join("  ");
   return (
-    <td className="max-w-[22rem] truncate font-mono text-xs text-graphite-soft" title={text}>
-      {text}
+    <td className="min-w-[14rem] max-w-[22rem] font-mono text-xs text-graphite-soft">
+      {entries.map(([k, v]) => (
+        <span key={k} className="block break-words">
+          <span className="text-graphite-muted">{k}=</span>
+          {typeof v === "string" ? v : JSON.stringify(v)}
+        </span>
+      ))}
     </td>
   );
 }

@@ -42,11 +42,11 @@ type Open =
   | { kind: "revoke"; key: ApiKeyBody }
   | null;
 
-function keyStatus(key: ApiKeyBody, now: number): { tone: BadgeTone; text: string } {
+function keyStatus(key: ApiKeyBody, now: number): { tone: BadgeTone; text: string; note?: string } {
   if (key.revokedAt !== null) return { tone: "bad", text: "Revoked" };
   if (key.expiresAt !== null && Date.parse(key.expiresAt) <= now) return { tone: "bad", text: "Expired" };
   if (key.graceUntil !== null && Date.parse(key.graceUntil) > now) {
-    return { tone: "warn", text: `Rotated; old secret valid until ${formatInstant(key.graceUntil)}` };
+    return { tone: "warn", text: "Rotated", note: `old secret valid until ${formatInstant(key.graceUntil, false)}` };
   }
   return { tone: "good", text: "Active" };
 }
@@ -86,9 +86,9 @@ export function KeysPanel() {
                 <th scope="col">Name</th>
                 <th scope="col">Key</th>
                 <th scope="col">Scopes</th>
-                <th scope="col">Created</th>
-                <th scope="col">Expires</th>
-                <th scope="col">Last used</th>
+                <th scope="col">Created (UTC)</th>
+                <th scope="col">Expires (UTC)</th>
+                <th scope="col">Last used (UTC)</th>
                 <th scope="col">Status</th>
                 {manage && (
                   <th scope="col">
@@ -109,11 +109,11 @@ export function KeysPanel() {
                 const status = keyStatus(key, now);
                 const live = key.revokedAt === null;
                 return (
-                  <tr key={key.id}>
-                    <td className="font-medium">{key.name}</td>
-                    <td className="font-mono text-xs">{key.prefix}…</td>
+                  <tr key={key.id} className={live ? undefined : "text-graphite-muted"}>
+                    <td className="min-w-[8rem] font-medium">{key.name}</td>
+                    <td className="whitespace-nowrap font-mono text-xs">{key.prefix}…</td>
                     <td>
-                      <div className="flex max-w-xs flex-wrap gap-1">
+                      <div className="flex min-w-[11rem] max-w-[15rem] flex-wrap gap-1">
                         {key.scopes.map((s) => (
                           <Badge key={s}>
                             <span className="font-mono">{s}</span>
@@ -121,11 +121,12 @@ export function KeysPanel() {
                         ))}
                       </div>
                     </td>
-                    <td className="whitespace-nowrap">{formatInstant(key.createdAt)}</td>
-                    <td className="whitespace-nowrap">{key.expiresAt === null ? "never" : formatInstant(key.expiresAt)}</td>
-                    <td className="whitespace-nowrap">{key.lastUsedAt === null ? "never" : formatInstant(key.lastUsedAt)}</td>
-                    <td>
+                    <td className="whitespace-nowrap">{formatInstant(key.createdAt, false)}</td>
+                    <td className="whitespace-nowrap">{key.expiresAt === null ? "never" : formatInstant(key.expiresAt, false)}</td>
+                    <td className="whitespace-nowrap">{key.lastUsedAt === null ? "never" : formatInstant(key.lastUsedAt, false)}</td>
+                    <td className="max-w-[11rem]">
                       <Badge tone={status.tone}>{status.text}</Badge>
+                      {status.note !== undefined && <span className="mt-0.5 block text-xs text-graphite-muted">{status.note}</span>}
                     </td>
                     {manage && (
                       <td className="whitespace-nowrap text-right">
@@ -235,6 +236,7 @@ function CreateKeyDialog({
         />
         <CheckboxGroup
           legend="Scopes"
+          subject="The key"
           options={SCOPES.map((s) => ({ value: s, hint: SCOPE_HINTS[s] }))}
           value={scopes}
           onChange={setScopes}

@@ -57,7 +57,7 @@ export function MembersPanel() {
                 <th scope="col">Name</th>
                 <th scope="col">E-mail</th>
                 <th scope="col">Role</th>
-                <th scope="col">Joined</th>
+                <th scope="col">Joined (UTC)</th>
                 {manage && (
                   <th scope="col">
                     <span className="sr-only">Actions</span>
@@ -92,7 +92,7 @@ export function MembersPanel() {
                         member.role
                       )}
                     </td>
-                    <td className="whitespace-nowrap">{formatInstant(member.joinedAt)}</td>
+                    <td className="whitespace-nowrap">{formatInstant(member.joinedAt, false)}</td>
                     {manage && (
                       <td className="text-right">
                         <Button size="sm" aria-label={`Remove ${member.email}`} onClick={() => setPending({ kind: "remove", member })}>
@@ -118,8 +118,8 @@ export function MembersPanel() {
                 <tr>
                   <th scope="col">E-mail</th>
                   <th scope="col">Role</th>
-                  <th scope="col">Sent</th>
-                  <th scope="col">Link expires</th>
+                  <th scope="col">Sent (UTC)</th>
+                  <th scope="col">Link expires (UTC)</th>
                 </tr>
               </thead>
               <tbody>
@@ -127,8 +127,8 @@ export function MembersPanel() {
                   <tr key={inv.id}>
                     <td>{inv.email}</td>
                     <td>{inv.role}</td>
-                    <td className="whitespace-nowrap">{formatInstant(inv.createdAt)}</td>
-                    <td className="whitespace-nowrap">{formatInstant(inv.expiresAt)}</td>
+                    <td className="whitespace-nowrap">{formatInstant(inv.createdAt, false)}</td>
+                    <td className="whitespace-nowrap">{formatInstant(inv.expiresAt, false)}</td>
                   </tr>
                 ))}
               </tbody>
@@ -213,7 +213,7 @@ function ChangeRoleDialog({ member, role, onClose }: { member: MemberBody; role:
   return (
     <ConfirmDialog
       open
-      title={`Make ${member.name} ${role === "admin" ? "an" : "a"} ${role}?`}
+      title={`Change the role of ${member.name} to ${role}?`}
       confirmLabel="Change role"
       tone="primary"
       pending={change.isPending}

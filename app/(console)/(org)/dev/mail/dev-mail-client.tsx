@@ -52,7 +52,7 @@ export function DevMailPanel() {
           <table className="table-dense" aria-label="Caught mail">
             <thead>
               <tr>
-                <th scope="col">Received</th>
+                <th scope="col">Received (UTC)</th>
                 <th scope="col">To</th>
                 <th scope="col">Subject</th>
                 <th scope="col">
@@ -71,7 +71,7 @@ export function DevMailPanel() {
               {mail.data.items.map((m) => (
                 <Fragment key={m.id}>
                   <tr>
-                    <td className="whitespace-nowrap">{formatInstantPrecise(m.receivedAt)}</td>
+                    <td className="whitespace-nowrap">{formatInstantPrecise(m.receivedAt, false)}</td>
                     <td>{m.to.join(", ")}</td>
                     <td className="font-medium">{m.subject}</td>
                     <td className="text-right">
