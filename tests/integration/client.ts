@@ -61,3 +61,23 @@ export const ADMIN = "admin@tallow-creek.example";
 export const ANALYST = "analyst@tallow-creek.example";
 export const AUDITOR = "auditor@tallow-creek.example";
 export const OTHER_ADMIN = "admin@brackenridge.example";
+
+/** Invites `email` as `role` (as the signed-in admin), follows the e-mailed link's token, and joins. */
+export async function inviteAndJoin(adminCookie: string, email: string, role: string, password = "correct horse battery"): Promise<{ cookie: string; token: string }> {
+  const inv = await api("/api/v1/invitations", { method: "POST", cookie: adminCookie, body: { email, role } });
+  if (inv.status !== 201) throw new Error(`invitation of ${email} answered ${inv.status}: ${await inv.text()}`);
+  const mail = await waitForMail((m) => m.to.includes(email) && m.subject.startsWith("You are invited"));
+  const token = new URL(/https?:\/\/\S+accept-invite\?token=\S+/.exec(mail.text)![0]).searchParams.get("token")!;
+  const res = await api("/api/v1/invitations/accept", { method: "POST", body: { token, name: email.split("@")[0], password } });
+  if (res.status !== 204) throw new Error(`accepting the invitation of ${email} answered ${res.status}: ${await res.text()}`);
+  return { cookie: sessionCookieOf(res), token };
+}
+
+export async function createKey(cookie: string, scopes: string[], name = `key ${scopes.join(",")}`): Promise<{ id: string; secret: string }> {
+  const res = await api("/api/v1/keys", { method: "POST", cookie, body: { name, scopes } });
+  if (res.status !== 201) throw new Error(`key creation answered ${res.status}: ${await res.text()}`);
+  const body = (await res.json()) as { key: { id: string }; secret: string };
+  return { id: body.key.id, secret: body.secret };
+}
+
+export const unique = (label: string) => `${label}-${Date.now().toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}`;

@@ -51,7 +51,8 @@ async function bringUp(): Promise<Running> {
   rmSync(runDir, { recursive: true, force: true });
   const mailDir = path.join(runDir, "mail");
   mkdirSync(mailDir, { recursive: true });
-  const logFile = path.join(runDir, "server.log");
+  // Outside the run directory, so the last run's server and worker output survives teardown for reading.
+  const logFile = path.join(projectRoot, ".data", "test-server.log");
   const log = createWriteStream(logFile);
   const out = (line: string) => log.write(line + "\n");
 
