@@ -48,6 +48,38 @@ describe("priorityFlood()", () => {
     expect(stats.seedCells).toBe(20); // 2·7 + 2·3 edge cells (derived)
   });
 
+  it("fills the 7×5 DEM shifted 10 m below zero to the listed values minus 10 (derived: the queue orders negative heights)", () => {
+    const rows = [
+      [8, 8, 8, 8, 8, 8, 8],
+      [8, 3, 3, 8, 4, 4, 8],
+      [8, 3, 1, 6, 4, 2, 8],
+      [8, 3, 3, 8, 4, 4, 8],
+      [8, 8, 8, 8, 8, 5, 8],
+    ];
+    const dem = gridOf(rows.map((r) => r.map((v) => v - 10)));
+    priorityFlood(dem);
+    const filled = [
+      [8, 8, 8, 8, 8, 8, 8],
+      [8, 6, 6, 8, 5, 5, 8],
+      [8, 6, 6, 6, 5, 5, 8],
+      [8, 6, 6, 8, 5, 5, 8],
+      [8, 8, 8, 8, 8, 5, 8],
+    ];
+    expect(Array.from(dem.data)).toEqual(filled.flat().map((v) => v - 10));
+  });
+
+  it("fills a pit at −1 m behind a −0 rim to 0, treating −0 and +0 as one height (IEEE 754: −0 = +0)", () => {
+    const dem = gridOf([
+      [-0, 0, -0, 0],
+      [0, -1, 0.5, -0],
+      [-0, 0, -0, 0],
+    ]);
+    const stats = priorityFlood(dem);
+    expect(stats.cellsRaised).toBe(1);
+    expect(dem.data[5] === 0).toBe(true); // raised to the rim, whichever zero it carries
+    expect(dem.data[6]).toBe(0.5);
+  });
+
   it("leaves a DEM without depressions unchanged (derived)", () => {
     const dem = gridOf([
       [5, 4, 3],
