@@ -58,6 +58,7 @@ export interface TopologyReport {
    *  a channel on no such path closes a loop and is removed. Locations are the removed channels' midpoints. */
   loops: { count: number; removedLengthM: number; locations: TopologyLocation[] };
   components: { count: number; analysed: number; rule: "each" | "largest"; droppedLengthM: number };
+  /** one per analysed component (the 100 longest), `lengthM` its channel length; how its outlet was chosen */
   outlets: (TopologyLocation & { rule: "point" | "lowest-end" | "digitising"; snapDistanceM: number | null })[];
   /** total length of the links in the network, m */
   networkLengthM: number;
@@ -359,8 +360,8 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
     }
     outletSnapM = best;
   }
-  // where both lines of a two-line node are hinted to flow in (or out), the node is a confluence at an
-  // outlet (or a split source), not a pass-through point
+  // where every line at a node is hinted to flow in (or out), the node is a confluence at an outlet
+  // (or a split source), not a pass-through point, even with two lines
   const into = (pi: number, n: number) => {
     const h = hint[pieces[pi].line];
     return h === 0 ? 0 : (pieces[pi].to === n) === (h > 0) ? 1 : -1;
@@ -408,9 +409,9 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
     if (loopLocations.length < MAX_REPORTED_LOCATIONS) loopLocations.push(midpoint(path, lengthM));
   }
   function midpoint(path: Float64Array, lengthM: number): TopologyLocation {
-    const v = 2 * Math.floor(path.length / 4);
-    const [lon, lat] = frame.toLonLat(path[v], path[v + 1]);
-    return { x: path[v], y: path[v + 1], lon, lat, lengthM };
+    const [x, y] = middleVertex(path);
+    const [lon, lat] = frame.toLonLat(x, y);
+    return { x, y, lon, lat, lengthM };
   }
   function edgePath(e: Edge): Float64Array {
     const out: number[] = [];
@@ -535,8 +536,8 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
   // ties between equal path lengths go to the edge of lower rank, a rank fixed by geometry, not input order
   const rank = new Int32Array(edges.length);
   edges
-    .map((e, i) => ({ i, lo: Math.min(e.a, e.b), hi: Math.max(e.a, e.b), len: e.lengthM, mid: midpoint(edgePath(e), 0) }))
-    .sort((p, q) => p.lo - q.lo || p.hi - q.hi || p.len - q.len || p.mid.x - q.mid.x || p.mid.y - q.mid.y)
+    .map((e, i) => ({ i, lo: Math.min(e.a, e.b), hi: Math.max(e.a, e.b), len: e.lengthM, mid: middleVertex(edgePath(e)) }))
+    .sort((p, q) => p.lo - q.lo || p.hi - q.hi || p.len - q.len || p.mid[0] - q.mid[0] || p.mid[1] - q.mid[1])
     .forEach((p, r) => { rank[p.i] = r; });
   const isRoot = new Uint8Array(nNodes);
   for (const r of roots) isRoot[r] = 1;
@@ -629,10 +630,17 @@ export function networkFromLines(lines: Float64Array[], options: FromLinesOption
     dangles: { dropped: danglesDropped, lengthM: dangleLength },
     loops: { count: loopCount, removedLengthM: loopLength, locations: loopLocations },
     components: { count: compRoots.length, analysed: analysed.length, rule: options.components, droppedLengthM: droppedLength },
-    outlets,
+    outlets: [...outlets].sort((a, b) => b.lengthM - a.lengthM).slice(0, MAX_REPORTED_LOCATIONS),
     networkLengthM,
   };
   return { network: { links, crs: options.crs }, report };
+}
+
+/** The middle vertex of a path, or the mean of the two middle vertices when their number is even. */
+function middleVertex(path: Float64Array): [number, number] {
+  const m = path.length / 2;
+  const a = Math.floor((m - 1) / 2), b = Math.ceil((m - 1) / 2);
+  return [(path[2 * a] + path[2 * b]) / 2, (path[2 * a + 1] + path[2 * b + 1]) / 2];
 }
 
 /** Per line +1 (vertex order runs downstream), −1 (it runs upstream) or 0 (unknown). */
