@@ -18,6 +18,7 @@ export const GEOKEY = {
   GeographicType: 2048,
   ProjectedCSType: 3072,
   ProjLinearUnits: 3076,
+  VerticalCSType: 4096,
   VerticalUnits: 4099,
 } as const;
 
@@ -115,11 +116,27 @@ export function crsFromGeoKeys(keys: Map<number, GeoKeyValue> | null, epsg?: num
   throw new RasterError("unsupported", `GTModelTypeGeoKey ${String(model)} (only projected = 1 and geographic = 2 grids are read)`);
 }
 
-/** Metres per unit of the elevations, from VerticalUnitsGeoKey (4099); metres when absent. */
+/** Metres per unit of the elevations: from VerticalUnitsGeoKey (4099), else from the unit of the EPSG
+ *  vertical CRS in VerticalCSTypeGeoKey (4096; GDAL writes only this one); metres when neither is given. */
 export function verticalUnitToMetre(keys: Map<number, GeoKeyValue> | null): number {
   const unit = keys?.get(GEOKEY.VerticalUnits);
-  if (unit === undefined || unit === USER_DEFINED) return 1;
-  const factor = typeof unit === "number" ? EPSG_UNIT_TO_METRE[unit] : undefined;
-  if (factor === undefined) throw new RasterError("unsupported", `vertical unit code ${String(unit)} (metre 9001, foot 9002 and US survey foot 9003 are converted)`);
+  if (unit !== undefined && unit !== USER_DEFINED) {
+    const factor = typeof unit === "number" ? EPSG_UNIT_TO_METRE[unit] : undefined;
+    if (factor === undefined) throw new RasterError("unsupported", `vertical unit code ${String(unit)} (metre 9001, foot 9002 and US survey foot 9003 are converted)`);
+    return factor;
+  }
+  const vertical = keys?.get(GEOKEY.VerticalCSType);
+  if (typeof vertical !== "number" || vertical === USER_DEFINED) return 1;
+  let entry: EpsgEntry;
+  try {
+    entry = requireJson(`epsg-index/s/${vertical}.json`) as EpsgEntry;
+  } catch {
+    throw new RasterError("crs-unknown", `vertical CRS EPSG:${vertical} is not in the EPSG index`);
+  }
+  if (entry.kind !== "CRS-VERTCRS") throw new RasterError("crs-unknown", `EPSG:${vertical} (${entry.name}) is not a vertical CRS`);
+  if (/depth/i.test(entry.name)) throw new RasterError("unsupported", `vertical CRS EPSG:${vertical} (${entry.name}) measures depth, positive down`);
+  const vunits = /\+vunits=(\S+)/.exec(entry.proj4)?.[1] ?? "m";
+  const factor = PROJ_UNIT_TO_METRE[vunits];
+  if (factor === undefined) throw new RasterError("unsupported", `vertical CRS EPSG:${vertical} uses the unit "${vunits}"`);
   return factor;
 }

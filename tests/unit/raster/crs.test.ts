@@ -53,4 +53,9 @@ describe("parseGeoKeys() and crsFromGeoKeys() (GeoTIFF 1.1, OGC 19-008r4 §7)", 
     expect(verticalUnitToMetre(parseGeoKeys(dir([4099, 0, 1, 9002])))).toBe(0.3048);
     expect(verticalUnitToMetre(parseGeoKeys(dir([4099, 0, 1, 9003])))).toBe(1200 / 3937);
   });
+  it("vertical units from the EPSG vertical CRS when only VerticalCSTypeGeoKey is given (EPSG:8228 NAVD88 height (ft), 5703 in metres)", () => {
+    expect(verticalUnitToMetre(parseGeoKeys(dir([4096, 0, 1, 8228])))).toBe(0.3048);
+    expect(verticalUnitToMetre(parseGeoKeys(dir([4096, 0, 1, 5703])))).toBe(1);
+    expect(() => verticalUnitToMetre(parseGeoKeys(dir([4096, 0, 1, 6357])))).toThrow(/depth/);
+  });
 });

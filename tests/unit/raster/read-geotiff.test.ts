@@ -110,6 +110,13 @@ describe("readDem() georeferencing and CRS", () => {
     expectClose(dem.cellGeometry.dy[0], 12000 / 3937, 1e-12);
   });
 
+  it("elevations in a US-survey-foot vertical CRS (EPSG:6360) are converted to metres (US survey foot = 1200/3937 m, NIST)", async () => {
+    const dem = await readDem(fixture("variants/crs-2263-vertical-ftus.tif"));
+    expect(dem.georef.crs.epsg).toBe(2263);
+    const want = expected().map((v) => Math.fround(v * (1200 / 3937)));
+    expect(mismatches(dem.elevation.data, want)).toBe(0);
+  });
+
   it("a grid in international feet (EPSG:2992) has 10 ft = 3.048 m cells (international foot = 0.3048 m, NIST)", async () => {
     const dem = await readDem(fixture("variants/crs-2992-ft.tif"));
     expect(dem.georef.crs.epsg).toBe(2992);
@@ -132,6 +139,14 @@ describe("readDem() georeferencing and CRS", () => {
     expect(dem.georef.rasterType).toBe("PixelIsPoint");
     expectClose(dem.georef.transform.originX, g.geoTransform[0], 1e-9);
     expectClose(dem.georef.transform.originY, g.geoTransform[3], 1e-9);
+  });
+
+  it("a north-up ModelTransformation gives the origin and cell size gdalinfo reports (GeoTIFF 1.1 §7.2; GDAL as reference)", async () => {
+    const file = fixture("hostile/model-transformation.tif");
+    const [dem, g] = [await readDem(file), gdalInfo(file)];
+    const t = dem.georef.transform;
+    expect([t.originX, t.pixelSizeX, 0, t.originY, 0, -t.pixelSizeY]).toEqual(g.geoTransform);
+    expect(dem.cellGeometry.area[0]).toBe(600);
   });
 
   it("an `epsg` option supplies the CRS a file lacks (derived)", async () => {
