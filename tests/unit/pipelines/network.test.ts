@@ -222,14 +222,17 @@ describe("runNetwork() inputs and parameters", () => {
     expect(networkParamsSchema.safeParse({ unknown: 1 }).success).toBe(false);
   });
 
-  test("an aborted signal stops the run, and progress rises to the output stage (common practice)", async () => {
+  test("an aborted signal stops the run, progress rises to the output stage and the summary is deterministic (common practice)", async () => {
     const controller = new AbortController();
     controller.abort();
     await expect(runNetwork({ geojson: featureCollection(tree, utmCrs) }, {}, { signal: controller.signal })).rejects.toThrow(/abort/i);
     const seen: string[] = [];
-    await runNetwork({ geojson: featureCollection(tree, utmCrs) }, {}, { onProgress: (stage, f) => seen.push(`${stage}:${f}`) });
+    const first = await runNetwork({ geojson: featureCollection(tree, utmCrs) }, {}, { onProgress: (stage, f) => seen.push(`${stage}:${f}`) });
     expect(seen[0]).toBe("read:0");
     expect(seen[seen.length - 1]).toBe("output:1");
+    // deterministic: a second run gives the same summary, byte for byte (no timings in it)
+    const second = await runNetwork({ geojson: featureCollection(tree, utmCrs) }, {});
+    expect(JSON.stringify(second.summary)).toBe(JSON.stringify(first.summary));
   });
 });
 
