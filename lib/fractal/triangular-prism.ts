@@ -49,10 +49,11 @@ export function triangularPrism(grid: Grid<Float32Array>, geometry: CellGeometry
       let sy = 0;
       for (let r = y; r < y + s; r++) sy += 0.5 * (geometry.dy[r] + geometry.dy[r + 1]);
       const hx = 0.5 * sx, hy = 0.5 * sy;
-      const top = y * width, bottom = (y + s) * width;
+      // row views: V8 keeps a fresh view's base and length in registers (measured faster than offsets)
+      const top = data.subarray(y * width, (y + 1) * width), bottom = data.subarray((y + s) * width, (y + s + 1) * width);
       let rowArea = 0, squares = 0;
       for (let x = 0; x + s < width; x += s) {
-        const a = data[top + x], b = data[top + x + s], c = data[bottom + x + s], d = data[bottom + x];
+        const a = top[x], b = top[x + s], c = bottom[x + s], d = bottom[x];
         const e = 0.25 * (a + b + c + d);
         if (e !== e) continue; // a nodata corner
         // corners a (0,0), b (sx,0), c (sx,sy), d (0,sy); centre (hx,hy); vectors from the centre

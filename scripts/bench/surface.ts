@@ -23,6 +23,8 @@ const TARGET_BASE_MB = 300;
 const MB = 1024 * 1024;
 /** Local dimension map settings timed here: the pipeline's defaults. */
 const LOCAL = { window: 64, step: 32 };
+/** Runs of the two compared estimators, ours and the native's; the fastest of each is compared. */
+const REPEATS = 3;
 /** Side of the corner every estimator runs on once before it is timed. */
 const WARM_UP_CELLS = 256;
 
@@ -37,6 +39,13 @@ function timed<T>(f: () => T): [T, number] {
   const t = process.hrtime.bigint();
   const r = f();
   return [r, Number(process.hrtime.bigint() - t) / 1e9];
+}
+
+/** The fastest of REPEATS runs: on a shared machine the minimum is the least disturbed measurement. */
+function bestOf<T>(f: () => T): [T, number] {
+  let best = timed(f);
+  for (let i = 1; i < REPEATS; i++) { const r = timed(f); if (r[1] < best[1]) best = r; }
+  return best;
 }
 
 const round = (v: number, digits = 3) => Math.round(v * 10 ** digits) / 10 ** digits;
@@ -89,16 +98,23 @@ export async function main(argv: string[]): Promise<number> {
     // the native's lags: 1, 2, 4, … while h ≤ W/8 and h ≤ H/8
     const lags: number[] = [];
     for (let lag = 1; lag <= w / 8 && lag <= h / 8; lag *= 2) lags.push(lag);
-    const [v, variogramS] = timed(() => variogram(grid, geometry, { lags }));
-    const [c, cubeS] = timed(() => cubeCounting(grid, geometry, { normalisation: "true-units" }));
+    const [v, variogramS] = bestOf(() => variogram(grid, geometry, { lags }));
+    const [c, cubeS] = bestOf(() => cubeCounting(grid, geometry, { normalisation: "true-units" }));
     const [p, spectrumS] = timed(() => powerSpectrum(grid, geometry));
     const [t, prismS] = timed(() => triangularPrism(grid, geometry));
     const [l, localS] = timed(() => localDimension(grid, geometry, LOCAL));
     const peakRssBytes = process.resourceUsage().maxRSS * 1024;
 
     // native reference on the same grid, after ours so its memory is not in our peak RSS
-    const out = execFileSync(path.join(referenceDir, "run.sh"), ["surface", rawForNative, String(w), String(h), String(cellM)], { encoding: "utf8" });
-    const native = JSON.parse(out.trim().split("\n").pop() as string) as NativeTimes;
+    const nativeRuns = Array.from({ length: REPEATS }, () => {
+      const out = execFileSync(path.join(referenceDir, "run.sh"), ["surface", rawForNative, String(w), String(h), String(cellM)], { encoding: "utf8" });
+      return JSON.parse(out.trim().split("\n").pop() as string) as NativeTimes;
+    });
+    const native = {
+      ...nativeRuns[0],
+      variogram_s: Math.min(...nativeRuns.map((r) => r.variogram_s)),
+      cube_s: Math.min(...nativeRuns.map((r) => r.cube_s)),
+    };
 
     const rssTargetBytes = TARGET_BYTES_PER_CELL * cells + TARGET_BASE_MB * MB;
     const ratioVariogram = variogramS / native.variogram_s, ratioCube = cubeS / native.cube_s;
@@ -122,7 +138,7 @@ export async function main(argv: string[]): Promise<number> {
       },
       peakRssMB: round(peakRssBytes / MB, 1),
       peakRssBytesPerCell: round(peakRssBytes / cells, 2),
-      native: { variogram: native.variogram_s, cubeCounting: native.cube_s, D_variogram: native.D_variogram, D_cube: native.D_cube },
+      native: { variogram: native.variogram_s, cubeCounting: native.cube_s, runs: nativeRuns.map((r) => [r.variogram_s, r.cube_s]), D_variogram: native.D_variogram, D_cube: native.D_cube },
       ratios: { variogram: round(ratioVariogram, 2), cubeCounting: round(ratioCube, 2) },
       targets: {
         ratioMax: TARGET_RATIO,
@@ -131,7 +147,8 @@ export async function main(argv: string[]): Promise<number> {
         rssLimitMB: round(rssTargetBytes / MB, 1),
         rssMet: peakRssBytes <= rssTargetBytes,
       },
-      notes: [...notes, `every estimator ran once on a ${side}² corner before it was timed (JIT warm-up)`],
+      notes: [...notes, `every estimator ran once on a ${side}² corner before it was timed (JIT warm-up)`,
+        `variogram and cube counting: fastest of ${REPEATS} runs, ours and the native's alike; other estimators: one run`],
     }, null, 2));
     return 0;
   } finally {
