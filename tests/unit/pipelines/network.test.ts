@@ -1,4 +1,4 @@
-import { execFileSync } from "node:child_process";
+import { execFileSync, spawnSync } from "node:child_process";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
@@ -282,5 +282,14 @@ describe("npm run analyze -- network", () => {
     expect(summary.topology.outlets[0].rule).toBe("point");
     expect(JSON.parse(readFileSync(path.join(out, "network.geojson"), "utf8")).features).toHaveLength(7);
     expect(readFileSync(path.join(out, "orders.csv"), "utf8").split("\n")[1]).toMatch(/^1,4,4,/);
+  });
+
+  test("exits with 1 and says why when the file holds polygons (derived)", () => {
+    const file = path.join(tmp, "polygon.geojson");
+    writeFileSync(file, JSON.stringify({ type: "FeatureCollection", features: [{ type: "Feature", properties: {}, geometry: { type: "Polygon", coordinates: [[[0, 0], [1, 0], [1, 1], [0, 0]]] } }] }));
+    const root = path.join(import.meta.dirname, "../../..");
+    const run = spawnSync(process.execPath, [path.join(root, "node_modules/tsx/dist/cli.mjs"), path.join(root, "scripts/analyze.ts"), "network", file], { cwd: root, encoding: "utf8" });
+    expect(run.status).toBe(1);
+    expect(run.stderr).toMatch(/feature 0 is a Polygon, not lines/);
   });
 });
