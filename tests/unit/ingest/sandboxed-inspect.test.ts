@@ -1,6 +1,7 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
+import { Readable } from "node:stream";
 import { ZipFile } from "yazl";
 import { afterAll, describe, expect, it } from "vitest";
 import { expectClose } from "@/tests/helpers/expect-close";
@@ -40,9 +41,29 @@ function ifdLoopTiff(): Buffer {
   return b;
 }
 
-async function zipOf(entries: Record<string, string>): Promise<Buffer> {
+/** A TIFF declaring 10⁶ × 10⁶ cells (LONG ImageWidth/ImageLength) and nothing else: 12 bytes of promise. */
+function absurdSizeTiff(): Buffer {
+  const b = Buffer.alloc(8 + 2 + 2 * 12 + 4);
+  b.write("II", 0, "latin1");
+  b.writeUInt16LE(42, 2);
+  b.writeUInt32LE(8, 4);
+  b.writeUInt16LE(2, 8);
+  for (const [i, tag] of [256, 257].entries()) {
+    const e = 10 + i * 12;
+    b.writeUInt16LE(tag, e);
+    b.writeUInt16LE(4, e + 2); // LONG
+    b.writeUInt32LE(1, e + 4);
+    b.writeUInt32LE(1_000_000, e + 8);
+  }
+  return b;
+}
+
+async function zipOf(entries: Record<string, string | Readable>): Promise<Buffer> {
   const zip = new ZipFile();
-  for (const [name, body] of Object.entries(entries)) zip.addBuffer(Buffer.from(body), name);
+  for (const [name, body] of Object.entries(entries)) {
+    if (typeof body === "string") zip.addBuffer(Buffer.from(body), name);
+    else zip.addReadStream(body, name);
+  }
   zip.end();
   const chunks: Buffer[] = [];
   for await (const c of zip.outputStream) chunks.push(c as Buffer);
@@ -120,5 +141,31 @@ describe("inspectUpload()", () => {
     ] }))));
     expect(err).toBeInstanceOf(InspectionFailedError);
     expect(err.code).toBe("not_lines");
+  });
+
+  it("a declared 10⁶ × 10⁶ raster is refused from its header, before any allocation (DESIGN.md: size checked first)", async () => {
+    const err = await refusal(inspectUpload(file("huge.tif", absurdSizeTiff())));
+    expect(err).toBeInstanceOf(InspectionFailedError);
+    expect(err.code).toBe("too-large");
+  });
+
+  it("GeoJSON nested 200 000 levels deep is refused without recursing (regression: JSON.parse stack depth)", async () => {
+    const deep = `{"type":"FeatureCollection","features":${"[".repeat(200_000)}${"]".repeat(200_000)}}`;
+    const err = await refusal(inspectUpload(file("deep.geojson", deep)));
+    expect(err).toBeInstanceOf(InspectionFailedError);
+    expect(err.code).toBe("too_deep");
+  });
+
+  it("a zip bomb (300 MiB of zeros in a few hundred KiB) is stopped while inflating, within seconds (derived)", async () => {
+    const zeros = Readable.from((function* () {
+      const mib = Buffer.alloc(1024 * 1024);
+      for (let i = 0; i < 300; i++) yield mib;
+    })());
+    const bomb = file("bomb.zip", await zipOf({ "lines.shp": zeros }));
+    const started = performance.now();
+    const err = await refusal(inspectUpload(bomb, { declaredKind: "zip" }));
+    expect(err).toBeInstanceOf(InspectionFailedError);
+    expect(err.code).toBe("zip_too_large");
+    expect(performance.now() - started).toBeLessThan(10_000);
   });
 });
