@@ -29,6 +29,14 @@ describe("readGeoJson()", () => {
     expect(r.crs).toEqual({ kind: "rfc7946" });
   });
 
+  test("a MultiLineString reads as the same lines as its parts given as LineStrings (invariant)", () => {
+    const parts = [[[0, 0], [1, 1]], [[2, 2], [3, 1], [4, 0]]];
+    const multi = readGeoJson(collection(feature({ type: "MultiLineString", coordinates: parts })));
+    const single = readGeoJson(collection(...parts.map((coordinates) => feature({ type: "LineString", coordinates }))));
+    expect(multi.lines).toEqual(single.lines);
+    expect(readGeoJson(feature({ type: "LineString", coordinates: parts[0] })).lines).toEqual(single.lines.slice(0, 1));
+  });
+
   test("refuses a Polygon as 'not lines', naming the feature index (derived)", () => {
     const doc = collection(
       feature({ type: "LineString", coordinates: [[0, 0], [1, 0]] }),

@@ -51,6 +51,13 @@ describe("safeUnzip()", () => {
     expect(totalBytes).toBe(3);
   });
 
+  test("gives back exactly the bytes that were zipped (invariant)", async () => {
+    const data = Buffer.alloc(300_000);
+    for (let i = 0, v = 1; i < data.length; i++) { v = (v * 1103515245 + 12345) >>> 0; data[i] = v >>> 24; }
+    const { files } = await safeUnzip(await makeZip([{ name: "random.bin", data }]));
+    expect(files.get("random.bin")!.equals(data)).toBe(true);
+  });
+
   test("refuses entries named ../x and /abs/x, and a symbolic link (APPNOTE 6.3.10 §4.4.15; path rules common practice)", async () => {
     const dotdot = await makeZip([{ name: "zz/x" }], [["zz/x", "../x"]]);
     expect((await refusal(safeUnzip(dotdot))).detail).toMatch(/"\.\.\/x" is refused: it has a '\.\.' component/);
