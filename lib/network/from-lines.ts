@@ -96,38 +96,73 @@ class UnionFind {
   }
 }
 
-/** Uniform grid over planar metres: points or sampled segments go into cells, a query reads the cells a box covers. */
+/** Uniform grid over planar metres: points or sampled segments go into cells, a query reads the cells a box
+ *  covers. Entries are collected as (cell, item) pairs and packed by cell into one typed array before the
+ *  first query (a counting sort), so millions of entries cost two typed arrays, not an array per cell. */
 class SpatialHash {
-  private readonly cells = new Map<number, number[]>();
+  private keys = new Float64Array(1024);
+  private items = new Int32Array(1024);
+  private size = 0;
+  /** cell key → bucket; bucket b holds packed[start[b] … start[b + 1]) */
+  private buckets: Map<number, number> | null = null;
+  private start = new Int32Array(0);
+  private packed = new Int32Array(0);
   private readonly ny: number;
   constructor(private readonly minX: number, private readonly minY: number, maxY: number, private readonly cell: number) {
     this.ny = Math.floor((maxY - minY) / cell) + 2;
   }
   private ix(x: number): number { return Math.floor((x - this.minX) / this.cell); }
   private iy(y: number): number { return Math.floor((y - this.minY) / this.cell); }
-  private add(item: number, i: number, j: number): void {
-    const key = i * this.ny + j;
-    const list = this.cells.get(key);
-    if (list === undefined) this.cells.set(key, [item]);
-    else if (list[list.length - 1] !== item) list.push(item);
+  private add(item: number, key: number): void {
+    if (this.size === this.keys.length) {
+      const keys = new Float64Array(this.size * 2); keys.set(this.keys); this.keys = keys;
+      const items = new Int32Array(this.size * 2); items.set(this.items); this.items = items;
+    }
+    this.keys[this.size] = key;
+    this.items[this.size++] = item;
   }
   insertPoint(item: number, x: number, y: number): void {
-    this.add(item, this.ix(x), this.iy(y));
+    this.add(item, this.ix(x) * this.ny + this.iy(y));
   }
   /** Into the cells of points sampled along the segment at most half a cell apart, so every point of the
    *  segment is within a quarter cell of a sample; work grows with length, not with the bounding box. */
   insertSegment(item: number, x0: number, y0: number, x1: number, y1: number): void {
     const steps = Math.ceil((2 * Math.hypot(x1 - x0, y1 - y0)) / this.cell);
+    let last = NaN;
     for (let k = 0; k <= steps; k++) {
       const t = steps === 0 ? 0 : k / steps;
-      this.add(item, this.ix(x0 + t * (x1 - x0)), this.iy(y0 + t * (y1 - y0)));
+      const key = this.ix(x0 + t * (x1 - x0)) * this.ny + this.iy(y0 + t * (y1 - y0));
+      if (key !== last) this.add(item, key);
+      last = key;
     }
   }
+  private build(): Map<number, number> {
+    const buckets = new Map<number, number>();
+    const bucketOf = new Int32Array(this.size);
+    for (let e = 0; e < this.size; e++) {
+      let b = buckets.get(this.keys[e]);
+      if (b === undefined) buckets.set(this.keys[e], (b = buckets.size));
+      bucketOf[e] = b;
+    }
+    const start = new Int32Array(buckets.size + 1);
+    for (let e = 0; e < this.size; e++) start[bucketOf[e] + 1]++;
+    for (let b = 0; b < buckets.size; b++) start[b + 1] += start[b];
+    const fill = start.slice(0, buckets.size);
+    const packed = new Int32Array(this.size);
+    for (let e = 0; e < this.size; e++) packed[fill[bucketOf[e]]++] = this.items[e];
+    this.start = start;
+    this.packed = packed;
+    this.keys = new Float64Array(0);
+    this.items = new Int32Array(0);
+    return (this.buckets = buckets);
+  }
   query(x0: number, y0: number, x1: number, y1: number, visit: (item: number) => void): void {
+    const buckets = this.buckets ?? this.build();
     for (let i = this.ix(x0); i <= this.ix(x1); i++) {
       for (let j = this.iy(y0); j <= this.iy(y1); j++) {
-        const list = this.cells.get(i * this.ny + j);
-        if (list) for (const item of list) visit(item);
+        const b = buckets.get(i * this.ny + j);
+        if (b === undefined) continue;
+        for (let k = this.start[b]; k < this.start[b + 1]; k++) visit(this.packed[k]);
       }
     }
   }
