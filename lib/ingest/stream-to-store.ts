@@ -2,7 +2,7 @@
 // straight to the store, under a byte limit checked per chunk, so memory stays constant whatever the size.
 import { createHash, randomUUID, type Hash } from "node:crypto";
 import { createWriteStream } from "node:fs";
-import { mkdir, unlink } from "node:fs/promises";
+import { mkdir, readdir, stat, unlink } from "node:fs/promises";
 import path from "node:path";
 import { Transform, type Readable, type TransformCallback } from "node:stream";
 import { pipeline } from "node:stream/promises";
@@ -64,6 +64,8 @@ function meterFor(source: Readable, limits: IngestLimits): HashingMeter {
   return new HashingMeter(limits.maxBytes);
 }
 
+const STAGED_NAME = /^upload-[0-9a-f-]{36}\.part$/;
+
 export interface StagedFile {
   path: string;
   /** Lowercase hex. */
@@ -75,7 +77,7 @@ export interface StagedFile {
 export async function stageToTempFile(body: ObjectBody, tempDir: string, limits: IngestLimits): Promise<StagedFile> {
   const source = bodyToReadable(body);
   const meter = meterFor(source, limits);
-  const file = path.join(tempDir, `upload-${randomUUID()}.part`);
+  const file = path.join(tempDir, `upload-${randomUUID()}.part`); // matches STAGED_NAME
   try {
     await mkdir(tempDir, { recursive: true });
     await pipeline(source, meter, createWriteStream(file, { flags: "wx" }), { signal: limits.signal });
@@ -84,6 +86,28 @@ export async function stageToTempFile(body: ObjectBody, tempDir: string, limits:
     throw err;
   }
   return { path: file, sha256: meter.hash.digest("hex"), size: meter.bytes };
+}
+
+/** Removes staged uploads older than maxAgeMs from tempDir (left by a crash between staging and storing);
+ *  returns how many went. */
+export async function removeStaleStaged(tempDir: string, maxAgeMs: number, now: number = Date.now()): Promise<number> {
+  let names: string[];
+  try {
+    names = await readdir(tempDir);
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code === "ENOENT") return 0;
+    throw err;
+  }
+  let removed = 0;
+  for (const name of names.filter((n) => STAGED_NAME.test(n))) {
+    const file = path.join(tempDir, name);
+    const info = await stat(file).catch(() => null);
+    if (info && info.mtimeMs < now - maxAgeMs) {
+      await unlink(file).catch(() => undefined);
+      removed++;
+    }
+  }
+  return removed;
 }
 
 export async function discardStaged(staged: StagedFile): Promise<void> {

@@ -15,6 +15,10 @@ export interface LocalDiskStoreOptions {
   root: string;
 }
 
+/** Temp files are `.<name>.<uuid>.tmp`: hidden (keys cannot start with a dot) and recognisable for sweeping. */
+const TEMP_SUFFIX = ".tmp";
+const TEMP_NAME = /^\..+\.[0-9a-f-]{36}\.tmp$/;
+
 /** Codes that mean "nothing stored under this key" (a segment of the key is a file, or the key is a directory). */
 const MISSING = new Set(["ENOENT", "ENOTDIR", "EISDIR"]);
 
@@ -70,7 +74,7 @@ export class LocalDiskStore implements ObjectStore {
       throw err;
     }
     const dir = path.dirname(target);
-    const tempPath = path.join(dir, `.${path.basename(target)}.${randomUUID()}.tmp`);
+    const tempPath = path.join(dir, `.${path.basename(target)}.${randomUUID()}${TEMP_SUFFIX}`);
     let handle: FileHandle | undefined;
     try {
       await mkdir(dir, { recursive: true });
@@ -151,6 +155,31 @@ export class LocalDiskStore implements ObjectStore {
     const slash = prefix.lastIndexOf("/");
     const base = slash < 0 ? "" : prefix.slice(0, slash);
     yield* this.walk(base, prefix);
+  }
+
+  /** Removes temp files older than maxAgeMs, left by writes a crash cut short (a live write is younger than
+   *  any sensible age); returns how many went. Run it at start-up. */
+  async removeStaleTempFiles(maxAgeMs: number, now: number = Date.now()): Promise<number> {
+    let removed = 0;
+    const sweep = async (dir: string): Promise<void> => {
+      let entries;
+      try {
+        entries = await opendir(dir);
+      } catch (err) {
+        if (isMissing(err)) return;
+        throw err;
+      }
+      for await (const entry of entries) {
+        const full = path.join(dir, entry.name);
+        if (entry.isDirectory()) await sweep(full);
+        else if (TEMP_NAME.test(entry.name) && (await stat(full)).mtimeMs < now - maxAgeMs) {
+          await unlink(full).catch(() => undefined);
+          removed++;
+        }
+      }
+    };
+    await sweep(this.root);
+    return removed;
   }
 
   private async *walk(relDir: string, prefix: string): AsyncIterable<string> {

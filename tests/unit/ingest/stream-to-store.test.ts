@@ -1,11 +1,11 @@
 import { createHash } from "node:crypto";
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, utimesSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { Readable } from "node:stream";
 import { afterAll, describe, expect, it } from "vitest";
 import {
-  discardStaged, PayloadTooLargeError, stageToTempFile, storeStaged, streamToStore,
+  discardStaged, PayloadTooLargeError, removeStaleStaged, stageToTempFile, storeStaged, streamToStore,
 } from "@/lib/ingest/stream-to-store";
 import { contentKey } from "@/lib/storage/keys";
 import { LocalDiskStore } from "@/lib/storage/local-disk";
@@ -134,6 +134,21 @@ describe("stageToTempFile()", () => {
     setTimeout(() => controller.abort(), 20);
     await expect(aborted).rejects.toMatchObject({ name: "AbortError" });
     expect(readdirSync(dir)).toEqual([]);
+  });
+});
+
+describe("removeStaleStaged()", () => {
+  it("removes staged uploads older than the age and leaves younger ones and other files (derived)", async () => {
+    const dir = tempDir();
+    const old = await stageToTempFile(Buffer.from("old"), dir, { maxBytes: 10 });
+    const young = await stageToTempFile(Buffer.from("young"), dir, { maxBytes: 10 });
+    writeFileSync(path.join(dir, "notes.txt"), "keep");
+    const twoHoursAgo = (Date.now() - 2 * 3600_000) / 1000;
+    utimesSync(old.path, twoHoursAgo, twoHoursAgo);
+    utimesSync(path.join(dir, "notes.txt"), twoHoursAgo, twoHoursAgo);
+    expect(await removeStaleStaged(dir, 3600_000)).toBe(1);
+    expect(readdirSync(dir).sort()).toEqual([path.basename(young.path), "notes.txt"].sort());
+    expect(await removeStaleStaged(path.join(dir, "missing"), 0)).toBe(0);
   });
 });
 
