@@ -1,6 +1,6 @@
 "use client";
 
-import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { useMutation } from "@tanstack/react-query";
 import Link from "next/link";
 import { usePathname, useRouter } from "next/navigation";
 import { useEffect, type ReactNode } from "react";
@@ -22,7 +22,6 @@ export function OrgShell({ devMail, children }: OrgShellProps) {
   const me = useMe();
   const router = useRouter();
   const pathname = usePathname();
-  const queryClient = useQueryClient();
   const unauthenticated = me.error instanceof ApiProblem && me.error.status === 401;
 
   useEffect(() => {
@@ -31,10 +30,9 @@ export function OrgShell({ devMail, children }: OrgShellProps) {
 
   const signOut = useMutation({
     mutationFn: (everywhere: boolean) => api<void>(everywhere ? "/sessions" : "/session", { method: "DELETE" }),
-    onSuccess: () => {
-      queryClient.clear();
-      router.replace("/sign-in");
-    },
+    // A full page load rather than a client navigation: nothing fetched for the old session stays in memory,
+    // and the shell cannot race the navigation with its own "not signed in" redirect.
+    onSuccess: () => window.location.assign("/sign-in"),
   });
 
   if (me.data === undefined) {
