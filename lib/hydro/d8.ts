@@ -60,8 +60,6 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
   }
   const signal = options.signal;
   const dir = new Uint8Array(w * h);
-  const offsets = new Int32Array(8);
-  for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
   const step = new Float64Array(8);
   const inv = new Float64Array(8);
 
@@ -93,7 +91,20 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
         if ((v = (c - nw) * i5) > best) { best = v; code = 5; }
         if ((v = (c - n) * i6) > best) { best = v; code = 6; }
         if ((v = (c - ne) * i7) > best) { best = v; code = 7; }
-        if (code === NO_FLOW && inc !== undefined && inc[row + x] > 0) code = flatDirection(z, inc, row + x, offsets, inv);
+        if (code === NO_FLOW && inc !== undefined) {
+          // On a flat: the neighbour of equal elevation down which the increment falls most steeply.
+          const i = row + x, ic = inc[i];
+          if (ic > 0) {
+            if (ce === c && (v = (ic - inc[i + 1]) * i0) > best) { best = v; code = 0; }
+            if (se === c && (v = (ic - inc[i + w + 1]) * i1) > best) { best = v; code = 1; }
+            if (s === c && (v = (ic - inc[i + w]) * i2) > best) { best = v; code = 2; }
+            if (sw === c && (v = (ic - inc[i + w - 1]) * i3) > best) { best = v; code = 3; }
+            if (cw === c && (v = (ic - inc[i - 1]) * i4) > best) { best = v; code = 4; }
+            if (nw === c && (v = (ic - inc[i - w - 1]) * i5) > best) { best = v; code = 5; }
+            if (n === c && (v = (ic - inc[i - w]) * i6) > best) { best = v; code = 6; }
+            if (ne === c && (v = (ic - inc[i - w + 1]) * i7) > best) { best = v; code = 7; }
+          }
+        }
         dir[row + x] = code;
       } else {
         dir[row + x] = NO_FLOW;
@@ -115,22 +126,6 @@ function edgeDirection(z: Float32Array, w: number, h: number, x: number, y: numb
     const nx = x + D8_DX[k], ny = y + D8_DY[k];
     if (nx < 0 || ny < 0 || nx >= w || ny >= h) continue;
     const s = (zc - z[ny * w + nx]) * inv[k];
-    if (s > best) {
-      best = s;
-      code = k;
-    }
-  }
-  return code;
-}
-
-/** On a flat: the neighbour of equal elevation down which the increment falls most steeply. */
-function flatDirection(z: Float32Array, inc: Int32Array, i: number, offsets: Int32Array, inv: Float64Array): number {
-  const zc = z[i], ic = inc[i];
-  let best = 0, code = NO_FLOW;
-  for (let k = 0; k < 8; k++) {
-    const j = i + offsets[k];
-    if (z[j] !== zc) continue;
-    const s = (ic - inc[j]) * inv[k];
     if (s > best) {
       best = s;
       code = k;

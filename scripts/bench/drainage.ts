@@ -6,7 +6,8 @@ import { closeSync, existsSync, mkdtempSync, openSync, readSync, rmSync, writeFi
 import os from "node:os";
 import path from "node:path";
 import { readDem, type Dem } from "@/lib/raster/read-geotiff";
-import { projectedCellGeometry } from "@/lib/raster/cell-geometry";
+import { projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
+import type { Grid } from "@/lib/raster/grid";
 import { priorityFlood } from "@/lib/hydro/priority-flood";
 import { resolveFlats } from "@/lib/hydro/flats";
 import { d8Directions } from "@/lib/hydro/d8";
@@ -93,6 +94,17 @@ export function makeSurface(dir: string, size: number): { raw: string; tif: stri
   return { raw, tif };
 }
 
+/** Flat resolution then D8, in a function of its own so the flat increments (4 bytes per cell) are
+ *  garbage once the directions exist, as in the pipeline. */
+function routeFlats(grid: Grid<Float32Array>, geometry: CellGeometry) {
+  const t0 = process.hrtime.bigint();
+  const { increments, ...flatSummary } = resolveFlats(grid);
+  const flatsS = seconds(t0);
+  const t1 = process.hrtime.bigint();
+  const directions = d8Directions(grid, geometry, { flatIncrements: increments });
+  return { flatsS, directionsS: seconds(t1), directions, flatSummary };
+}
+
 function seconds(start: bigint): number {
   return Number(process.hrtime.bigint() - start) / 1e9;
 }
@@ -140,13 +152,7 @@ export async function main(argv: string[]): Promise<number> {
     const t1 = process.hrtime.bigint();
     const fill = priorityFlood(grid);
     const fillS = seconds(t1);
-    const t2 = process.hrtime.bigint();
-    const flats = resolveFlats(grid);
-    const flatsS = seconds(t2);
-    const t3 = process.hrtime.bigint();
-    const directions = d8Directions(grid, geometry, { flatIncrements: flats.increments });
-    const directionsS = seconds(t3);
-    const flatSummary = { ...flats, increments: undefined };
+    const { flatsS, directionsS, directions, flatSummary } = routeFlats(grid, geometry);
     const t4 = process.hrtime.bigint();
     const acc = flowAccumulation(directions, grid, geometry);
     const accumulationS = seconds(t4);
