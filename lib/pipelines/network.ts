@@ -50,8 +50,8 @@ export const networkParamsSchema = z
       .describe("how far the outlet point may be from a line end or junction, m; default 100, at most 100 000"),
     snapToleranceM: z.number().min(0).max(1_000).default(1)
       .describe("line ends closer than this are joined, and a line end this close to another line splits it, m; default 1, 0–1000"),
-    dangleLengthM: z.number().min(0).max(10_000).default(0)
-      .describe("source lines shorter than this that hang off a junction are dropped as digitising overshoots, m; default 0 (keep all), at most 10 000"),
+    dangleLengthM: z.number().min(0).max(10_000).optional()
+      .describe("source lines shorter than this that hang off a junction are dropped as digitising overshoots, m; default the snapping tolerance, 0 keeps all, at most 10 000"),
     components: z.enum(["each", "largest"]).default("each")
       .describe("analyse every connected part of the network, or only the largest (the outlet's, when an outlet is given); default each"),
     flowDirectionField: z.string().min(1).max(100).optional()
@@ -140,7 +140,7 @@ export async function runNetwork(input: NetworkInput, params: NetworkParams, hoo
   const { network, report } = networkFromLines(vector.lines, {
     crs: crs.proj4,
     snapToleranceM: p.snapToleranceM,
-    dangleLengthM: p.dangleLengthM,
+    dangleLengthM: p.dangleLengthM ?? p.snapToleranceM,
     outlet,
     elevationAt,
     orientation: orientationHint(vector, p),

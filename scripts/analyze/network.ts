@@ -13,7 +13,7 @@ const USAGE = `usage: npm run analyze -- network <file.geojson|file.zip|file.shp
   --epsg CODE                 CRS of the lines when the file states none (or to override it)
   --snap-tolerance M          join line ends closer than M metres (default 1)
   --outlet-radius M           how far the outlet may be from a line end or junction (default 100)
-  --dangle-length M           drop source overshoots shorter than M metres (default 0: keep)
+  --dangle-length M           drop source overshoots shorter than M metres (default: the snap tolerance)
   --components each|largest   analyse every connected part or only the largest (default each)
   --flow-direction-field F    property: positive/true = digitised downstream
   --id-field F --downstream-id-field G   properties: line id and the id it flows into

@@ -215,7 +215,7 @@ describe("runNetwork() inputs and parameters", () => {
   });
 
   test("the parameters schema applies its defaults and refuses values out of bounds (STANDARDS.md: validation failures are 422)", () => {
-    expect(networkParamsSchema.parse({})).toMatchObject({ snapToleranceM: 1, outletRadiusM: 100, dangleLengthM: 0, components: "each", confidence: 0.95 });
+    expect(networkParamsSchema.parse({})).toMatchObject({ snapToleranceM: 1, outletRadiusM: 100, components: "each", confidence: 0.95 });
     expect(networkParamsSchema.safeParse({ snapToleranceM: -1 }).success).toBe(false);
     expect(networkParamsSchema.safeParse({ outlet: [200, 0] }).success).toBe(false);
     expect(networkParamsSchema.safeParse({ idField: "id" }).success).toBe(false);
@@ -233,6 +233,7 @@ describe("runNetwork() inputs and parameters", () => {
     // deterministic: a second run gives the same summary, byte for byte (no timings in it)
     const second = await runNetwork({ geojson: featureCollection(tree, utmCrs) }, {});
     expect(JSON.stringify(second.summary)).toBe(JSON.stringify(first.summary));
+    expect(first.summary.topology.dangleLengthM).toBe(1); // the default dangle length is the snapping tolerance
   });
 });
 
