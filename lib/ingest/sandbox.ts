@@ -49,6 +49,44 @@ export class InspectionFailedError extends Error {
   }
 }
 
+/** Too many inspections already waiting for a slot (→ 503 with Retry-After). */
+export class InspectionBusyError extends Error {
+  readonly code = "inspection_busy";
+  constructor(readonly running: number, readonly waiting: number) {
+    super(`${running} file inspections are running and ${waiting} waiting; try again shortly`);
+    this.name = "InspectionBusyError";
+  }
+}
+
+/**
+ * Caps how many children run at once, since each may hold up to its RSS cap: without it, a burst of hostile
+ * uploads multiplies the cap by the burst. Runs past `size` wait in order; past `maxWaiting` they are refused.
+ */
+export class SandboxSlots {
+  private running = 0;
+  private readonly waiting: (() => void)[] = [];
+
+  constructor(readonly size: number, readonly maxWaiting: number) {
+    if (!Number.isInteger(size) || size < 1) throw new RangeError(`sandbox slots must be a positive integer, got ${size}`);
+    if (!Number.isInteger(maxWaiting) || maxWaiting < 0) throw new RangeError(`maxWaiting must be a non-negative integer, got ${maxWaiting}`);
+  }
+
+  /** Resolves with the release function once a slot is free. */
+  acquire(): Promise<() => void> {
+    const release = () => {
+      const next = this.waiting.shift();
+      if (next) next();
+      else this.running--;
+    };
+    if (this.running < this.size) {
+      this.running++;
+      return Promise.resolve(release);
+    }
+    if (this.waiting.length >= this.maxWaiting) return Promise.reject(new InspectionBusyError(this.running, this.waiting.length));
+    return new Promise((resolve) => this.waiting.push(() => resolve(release)));
+  }
+}
+
 export interface SandboxRun<T> {
   result: T;
   elapsedMs: number;
@@ -60,6 +98,8 @@ export interface SandboxOptions {
   /** Directory holding package.json, tsconfig.json and node_modules/tsx; the child runs there. Defaults to the
    *  working directory, which is the project root under `next start`, the worker and vitest alike. */
   projectRoot?: string;
+  /** Shared cap on concurrent children; the deadline starts when the child is spawned, not while waiting. */
+  slots?: SandboxSlots;
 }
 
 async function readRssBytes(pid: number): Promise<number | null> {
@@ -92,6 +132,11 @@ export function runInSandbox<T>(
   const root = path.resolve(options.projectRoot ?? process.cwd());
   const entryPath = path.resolve(root, entry);
   if (!existsSync(entryPath)) throw new Error(`sandbox entry ${entryPath} does not exist`);
+  if (!options.slots) return spawnChild<T>(root, entryPath, request, l);
+  return options.slots.acquire().then((release) => spawnChild<T>(root, entryPath, request, l).finally(release));
+}
+
+function spawnChild<T>(root: string, entryPath: string, request: unknown, l: SandboxLimits): Promise<SandboxRun<T>> {
   const started = performance.now();
 
   return new Promise<SandboxRun<T>>((resolve, reject) => {

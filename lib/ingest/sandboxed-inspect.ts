@@ -3,11 +3,17 @@
 // RSS cap and a deadline, so a hostile file (IFD loop, bomb, absurd size) costs seconds, never the server.
 import path from "node:path";
 import type { InspectKind, InspectRequest, Inspection } from "@/lib/ingest/inspect-child";
-import { InspectionFailedError, runInSandbox, type SandboxLimits, type SandboxOptions } from "@/lib/ingest/sandbox";
+import {
+  InspectionFailedError, runInSandbox, SandboxSlots, type SandboxLimits, type SandboxOptions,
+} from "@/lib/ingest/sandbox";
 import { describeFormat, sniffFile, type SniffedFormat } from "@/lib/ingest/sniff-format";
 
 export type { InspectKind, Inspection } from "@/lib/ingest/inspect-child";
-export { InspectionFailedError, InspectionMemoryError, InspectionTimeoutError } from "@/lib/ingest/sandbox";
+export { InspectionBusyError, InspectionFailedError, InspectionMemoryError, InspectionTimeoutError } from "@/lib/ingest/sandbox";
+
+/** The process's inspection slots: one child per core of the 2-core target machine, and a short queue
+ *  (each waiting upload holds a client connection). Pass `sandbox.slots` to use others. */
+export const INSPECTION_SLOTS = new SandboxSlots(2, 8);
 
 /** The child entry, relative to the project root (tsx runs it from source; see runInSandbox). */
 export const INSPECT_CHILD_ENTRY = "lib/ingest/inspect-child.ts";
@@ -52,6 +58,6 @@ export async function inspectUpload(filePath: string, options: InspectUploadOpti
   const request: InspectRequest = {
     kind, path: path.resolve(filePath), epsg: options.epsg, band: options.band, cellBudget: options.cellBudget,
   };
-  const run = await runInSandbox<Inspection>(INSPECT_CHILD_ENTRY, request, options.limits, options.sandbox);
+  const run = await runInSandbox<Inspection>(INSPECT_CHILD_ENTRY, request, options.limits, { slots: INSPECTION_SLOTS, ...options.sandbox });
   return { inspection: run.result, format, elapsedMs: run.elapsedMs, peakRssBytes: run.peakRssBytes };
 }

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import {
-  InspectionFailedError, InspectionMemoryError, InspectionTimeoutError, runInSandbox,
+  InspectionBusyError, InspectionFailedError, InspectionMemoryError, InspectionTimeoutError, runInSandbox, SandboxSlots,
 } from "@/lib/ingest/sandbox";
 
 const CHILD = "tests/unit/ingest/fixtures/misbehaving-child.ts";
@@ -77,5 +77,16 @@ describe("runInSandbox()", () => {
   it("refuses non-positive limits before spawning anything (derived)", () => {
     expect(() => runInSandbox(CHILD, {}, { timeoutMs: 0 })).toThrow(RangeError);
     expect(() => runInSandbox("tests/unit/ingest/fixtures/no-such-child.ts", {})).toThrow(/does not exist/);
+  });
+
+  it("with one slot, a second run waits for the first child to end, and a third past the queue is refused (derived)", async () => {
+    const slots = new SandboxSlots(1, 1);
+    const order: string[] = [];
+    const first = runInSandbox(CHILD, { act: "sleep" }, { timeoutMs: 1_000 }, { slots }).catch(() => order.push("first ended"));
+    const second = runInSandbox(CHILD, { act: "echo" }, {}, { slots }).then(() => order.push("second answered"));
+    await expect(runInSandbox(CHILD, { act: "echo" }, {}, { slots })).rejects.toBeInstanceOf(InspectionBusyError);
+    await Promise.all([first, second]);
+    expect(order).toEqual(["first ended", "second answered"]);
+    await expect(runInSandbox(CHILD, { act: "echo" }, {}, { slots })).resolves.toBeDefined(); // slots freed
   });
 });
