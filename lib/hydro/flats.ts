@@ -108,7 +108,7 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
     if (away > maxAway[flat]) maxAway[flat] = away;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
-      if (label[j] > 0 && increments[j] === 0) {
+      if (increments[j] === 0 && label[j] > 0) {
         increments[j] = away + 1;
         members[tail++] = j;
       }
