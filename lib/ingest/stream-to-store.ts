@@ -140,7 +140,7 @@ export async function storeStaged(
 }
 
 /** Streams the body straight into the store under a key the caller already knows (e.g. a job artifact),
- *  hashing and counting on the way; a failure leaves no object (puts are atomic). */
+ *  hashing and counting on the way; a failure leaves the store as it was (puts are atomic). */
 export async function streamToStore(
   body: ObjectBody, store: ObjectStore, key: string, limits: IngestLimits & { contentType?: string },
 ): Promise<{ key: string; sha256: string; size: number; info: ObjectInfo }> {
