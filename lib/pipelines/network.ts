@@ -13,7 +13,7 @@ import { drainageDensity, type DrainageDensity } from "@/lib/network/drainage-de
 import { networkFromLines, type OrientationHint, type TopologyReport } from "@/lib/network/from-lines";
 import { hack, mainStreamLength, type HackResult } from "@/lib/network/hack";
 import { horton, type HortonRatio, type HortonResult } from "@/lib/network/horton";
-import { upstreamLinks, type StreamNetwork } from "@/lib/network/model";
+import { topologicalOrder, upstreamLinks, type StreamNetwork } from "@/lib/network/model";
 import { shreveMagnitude } from "@/lib/network/shreve";
 import { strahlerOrder } from "@/lib/network/strahler";
 import { tokunaga, type TokunagaResult } from "@/lib/network/tokunaga";
@@ -117,9 +117,23 @@ export interface NetworkSummary {
   drainageDensity: (DrainageDensity & { basinAreaFrom: string }) | null;
   mainStemDivider: (Omit<DividerResult, "coordinates"> & { mainStemLengthM: number; coordinates: Polylines["coordinates"] }) | { value: null; reason: string };
   planformBoxCounting: BoxCountingResult | { value: null; reason: string };
+  /** each connected part on its own (the longest COMPONENTS_LISTED): the pooled results above cover all */
+  components: ComponentSummary[];
   units: Record<string, string>;
   params: z.output<typeof networkParamsSchema>;
 }
+
+export interface ComponentSummary {
+  outlet: { lon: number; lat: number };
+  links: number;
+  highestOrder: number;
+  totalLengthM: number;
+  bifurcationRatio: number | null;
+  lengthRatio: number | null;
+}
+
+/** Parts listed one by one in the summary; a national layer can have thousands of small ones. */
+const COMPONENTS_LISTED = 100;
 
 /** Reads, builds the topology, analyses and writes the ordered network. Deterministic: no timings. */
 export async function runNetwork(input: NetworkInput, params: NetworkParams, hooks: PipelineHooks = {}): Promise<{ summary: NetworkSummary; artifacts: NetworkArtifact[] }> {
@@ -214,6 +228,7 @@ export async function runNetwork(input: NetworkInput, params: NetworkParams, hoo
     drainageDensity: density,
     mainStemDivider: stemDivider,
     planformBoxCounting: boxes,
+    components: componentSummaries(network, p, toLonLat),
     units: {
       lengths: "m", areas: "m²", slopes: "m/m", drainageDensity: "km/km²", hackCoefficient: "km per km²^h",
       ratios: "dimensionless", dimensions: "dimensionless", locations: "lon/lat degrees WGS 84 and the lines' CRS",
@@ -346,6 +361,44 @@ function mainStem(network: StreamNetwork): { path: Float64Array; lengthM: number
     for (let i = out.length === 0 ? 0 : 2; i < path.length; i++) out.push(path[i]);
   }
   return { path: Float64Array.from(out), lengthM: longest[chain[0]] };
+}
+
+/** Horton ratios of each connected part: links grouped by the point their outlet link ends at (the
+ *  outlet node, which several outlet links share when the outlet is a confluence). */
+function componentSummaries(network: StreamNetwork, p: z.output<typeof networkParamsSchema>, toLonLat: (x: number, y: number) => [number, number]): ComponentSummary[] {
+  const n = network.links.length;
+  const part = new Int32Array(n).fill(-1);
+  const partOfEnd = new Map<string, number>();
+  const order = topologicalOrder(network);
+  for (let k = n - 1; k >= 0; k--) {
+    const l = network.links[order[k]];
+    if (l.downstream >= 0) { part[l.id] = part[l.downstream]; continue; }
+    const key = `${l.path[l.path.length - 2]},${l.path[l.path.length - 1]}`;
+    if (!partOfEnd.has(key)) partOfEnd.set(key, partOfEnd.size);
+    part[l.id] = partOfEnd.get(key)!;
+  }
+  const members: number[][] = Array.from({ length: partOfEnd.size }, () => []);
+  for (let i = 0; i < n; i++) members[part[i]].push(i);
+  const length = members.map((m) => m.reduce((s, i) => s + network.links[i].lengthM, 0));
+  const ranked = members.map((_, c) => c).sort((a, b) => length[b] - length[a] || a - b).slice(0, COMPONENTS_LISTED);
+  return ranked.map((c) => {
+    const index = new Map(members[c].map((i, k) => [i, k]));
+    const sub: StreamNetwork = {
+      crs: network.crs,
+      links: members[c].map((i, k) => ({ ...network.links[i], id: k, downstream: index.get(network.links[i].downstream) ?? -1 })),
+    };
+    const h = horton(sub, { excludeHighestOrder: p.excludeHighestOrder, confidence: p.confidence });
+    const outletLink = sub.links.find((l) => l.downstream < 0)!;
+    const [lon, lat] = toLonLat(outletLink.path[outletLink.path.length - 2], outletLink.path[outletLink.path.length - 1]);
+    return {
+      outlet: { lon: round(lon), lat: round(lat) },
+      links: sub.links.length,
+      highestOrder: h.highestOrder,
+      totalLengthM: length[c],
+      bifurcationRatio: h.bifurcation?.value ?? null,
+      lengthRatio: h.length?.value ?? null,
+    };
+  });
 }
 
 /** Runs an estimator whose input may be too small; its RangeError becomes the reported reason. */

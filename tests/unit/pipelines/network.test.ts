@@ -214,6 +214,17 @@ describe("runNetwork() inputs and parameters", () => {
     await expect(runNetwork({ zipPath }, { flowDirectionField: "nope" })).rejects.toThrow(/no feature has the property "nope"/);
   });
 
+  test("separate parts are pooled in the Horton table and each also gets its own ratios (derived)", async () => {
+    const lines = [...tree, [at(5000, 100), at(5000, 0)]];
+    const { summary } = await runNetwork({ geojson: featureCollection(lines, utmCrs) }, {});
+    expect(summary.topology.components).toMatchObject({ count: 2, analysed: 2 });
+    expect(summary.orders.map((o) => o.streams)).toEqual([3, 1]);
+    expect(summary.components.map((c) => [c.links, c.highestOrder, c.bifurcationRatio])).toEqual([[3, 2, 2], [1, 1, null]]);
+    expectClose(summary.components[1].totalLengthM, 100, 1e-9);
+    const largest = await runNetwork({ geojson: featureCollection(lines, utmCrs) }, { components: "largest" });
+    expect(largest.summary.orders.map((o) => o.streams)).toEqual([2, 1]);
+  });
+
   test("the parameters schema applies its defaults and refuses values out of bounds (STANDARDS.md: validation failures are 422)", () => {
     expect(networkParamsSchema.parse({})).toMatchObject({ snapToleranceM: 1, outletRadiusM: 100, components: "each", confidence: 0.95 });
     expect(networkParamsSchema.safeParse({ snapToleranceM: -1 }).success).toBe(false);
