@@ -32,6 +32,7 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
     throw new RangeError(`grid data has ${z.length} cells, expected ${w}×${h} = ${w * h}`);
   }
   const signal = options.signal;
+  signal?.throwIfAborted();
   const n = w * h;
   const increments = new Int32Array(n);
   const offsets = new Int32Array(8);

@@ -186,6 +186,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   }
   const epsilon = options.epsilon === true;
   const signal = options.signal;
+  signal?.throwIfAborted();
   const n = w * h;
   const closed = new Uint8Array(n);
   const heap = new RadixQueue();
