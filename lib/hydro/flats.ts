@@ -15,7 +15,8 @@ export interface FlatResolution {
   unresolvedFlats: number;
   /** cells of the unresolved flats */
   unresolvedCells: number;
-  /** largest increment, for the evidence: about 3× the longest flow path across one flat, in cells */
+  /** largest increment, for the evidence: at most 2 × the longest way to an outlet + the longest way
+   *  from higher terrain, both in cell steps */
   maxIncrement: number;
 }
 
