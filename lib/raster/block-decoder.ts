@@ -7,7 +7,7 @@ import { RasterError } from "@/lib/raster/errors";
 import { TAG, type TiffLayout } from "@/lib/raster/tiff-structure";
 import { decodeTiffLzw } from "@/lib/raster/tiff-lzw";
 import { decodePackBits } from "@/lib/raster/packbits";
-import { zstdOutputBound } from "@/lib/raster/zstd-frame";
+import { withContentSize, zstdOutputBound } from "@/lib/raster/zstd-frame";
 
 /** A LERC blob may exceed its raw block (mask, raw fallback); same allowance as the layout check. */
 const LERC_BLOB_FACTOR = 2;
@@ -20,8 +20,9 @@ const ZSTD_BOUND_SLACK = 128 * 1024;
 const LERC_ADD_NONE = 0, LERC_ADD_DEFLATE = 1, LERC_ADD_ZSTD = 2;
 
 export interface BlockDecoder {
-  /** the block's samples in the host's (little-endian) byte order, predictor undone */
-  decode(stored: Uint8Array): Promise<ArrayBuffer>;
+  /** the block's samples in the host's (little-endian) byte order, predictor undone; `rows` is the
+   *  number of image rows the block holds (a last strip may hold fewer than the others) */
+  decode(stored: Uint8Array, rows: number): Promise<ArrayBuffer>;
 }
 
 /** Reverses the byte order of each `size`-byte sample in place. */
@@ -76,14 +77,11 @@ export async function makeBlockDecoder(layout: TiffLayout): Promise<BlockDecoder
   const bytesPerPixel = planarConfiguration === 2 ? bitsPerSample[0] / 8 : bitsPerSample.reduce((a, b) => a + b, 0) / 8;
   const rowBytes = blockWidth * bytesPerPixel;
   const maxBytes = rowBytes * blockHeight;
-  // strips: the last one may hold only the remaining rows
-  const lastRows = layout.tiled ? blockHeight : layout.height - (Math.ceil(layout.height / blockHeight) - 1) * blockHeight;
-  const minBytes = rowBytes * lastRows;
   const parameters = { tileWidth: blockWidth, tileHeight: blockHeight, planarConfiguration, bitsPerSample, predictor: 1 };
   const swapSize = layout.littleEndian || compression === 34887 ? 0 : bitsPerSample[0] / 8;
   const withPredictor = predictor === 1 ? null : ((await getDecoder(1, { ...parameters, predictor } as never)) as unknown as GeotiffDecoder);
 
-  let decompress: (stored: Uint8Array) => Promise<ArrayBuffer>;
+  let decompress: (stored: Uint8Array, rows: number) => Promise<ArrayBuffer>;
   switch (compression) {
     case 1:
       decompress = async (stored) => ownBuffer(stored, Math.min(stored.length, maxBytes));
@@ -106,9 +104,9 @@ export async function makeBlockDecoder(layout: TiffLayout): Promise<BlockDecoder
       break;
     case 50000: {
       const zstd = (await getDecoder(50000, parameters as never)) as unknown as GeotiffDecoder;
-      decompress = async (stored) => {
+      decompress = async (stored, rows) => {
         if (zstdOutputBound(stored) > maxBytes * ZSTD_BOUND_FACTOR + ZSTD_BOUND_SLACK) throw corrupt(`a Zstd block can expand past its declared ${maxBytes} bytes`);
-        return (await zstd.decode(ownBuffer(stored))) as ArrayBuffer;
+        return (await zstd.decode(ownBuffer(withContentSize(stored, rowBytes * rows)))) as ArrayBuffer;
       };
       break;
     }
@@ -127,7 +125,7 @@ export async function makeBlockDecoder(layout: TiffLayout): Promise<BlockDecoder
         if (add === LERC_ADD_DEFLATE) blob = inflateBounded(stored, maxBlob, "LERC-Deflate");
         if (zstd) {
           if (zstdOutputBound(stored) > maxBlob * ZSTD_BOUND_FACTOR + ZSTD_BOUND_SLACK) throw corrupt(`a LERC-Zstd block can expand past ${maxBlob} bytes`);
-          blob = new Uint8Array(await zstd.decode(ownBuffer(stored)));
+          blob = new Uint8Array(await zstd.decode(ownBuffer(withContentSize(stored, null))));
         }
         checkLercHeader(blob, blockWidth, blockHeight);
         return (await lerc.decode(ownBuffer(blob))) as ArrayBuffer;
@@ -139,21 +137,23 @@ export async function makeBlockDecoder(layout: TiffLayout): Promise<BlockDecoder
   }
 
   return {
-    async decode(stored) {
+    async decode(stored, rows) {
       let raw: ArrayBuffer;
       try {
-        raw = await decompress(stored);
+        raw = await decompress(stored, rows);
       } catch (err) {
         throw err instanceof RasterError ? err : corrupt(`a block does not decode: ${(err as Error).message}`);
       }
-      if (raw.byteLength < minBytes || raw.byteLength > maxBytes) {
-        throw corrupt(`a block decodes to ${raw.byteLength} bytes, expected ${minBytes === maxBytes ? maxBytes : `${minBytes}–${maxBytes}`}`);
+      // at least the block's rows (a writer may pad a last strip to full size), never more than a full block
+      const expected = rowBytes * rows;
+      if (raw.byteLength < expected || raw.byteLength > maxBytes) {
+        throw corrupt(`a block decodes to ${raw.byteLength} bytes, expected ${expected === maxBytes ? maxBytes : `${expected}–${maxBytes}`}`);
       }
       // Big-endian files: horizontal differencing works on sample values, so swap before undoing it;
       // the floating-point predictor's byte planes come out in file order (libtiff writes them so),
       // so swap after. LERC decodes to host order itself.
       if (swapSize > 1 && predictor === 2) swapBytes(new Uint8Array(raw), swapSize);
-      const samples = withPredictor ? ((await withPredictor.decode(raw)) as ArrayBuffer) : raw;
+      const samples = withPredictor ? ((await withPredictor.decode(raw.byteLength === expected ? raw : raw.slice(0, expected))) as ArrayBuffer) : raw;
       if (swapSize > 1 && predictor !== 2) swapBytes(new Uint8Array(samples), swapSize);
       return samples;
     },

@@ -264,7 +264,7 @@ export async function readDem(path: string, options: ReadDemOptions = {}): Promi
         }
         const stored = new Uint8Array(count);
         await fh.read(stored, 0, count, layout.blockOffsets[index]);
-        const decoded = await decoder.decode(stored);
+        const decoded = await decoder.decode(stored, layout.tiled ? blockHeight : rows);
         const samples = new Samples(decoded, 0, Math.floor(decoded.byteLength / sampleBytes));
         const rowStride = blockWidth * stride;
         const rowsHere = Math.min(rows, Math.floor(samples.length / rowStride));

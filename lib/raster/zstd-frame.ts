@@ -1,5 +1,6 @@
 // Zstandard frame layout (RFC 8878 §3.1): the most bytes the frames of a block can decode to, so a block
-// that could expand past its tile is refused before the decoder allocates anything.
+// that could expand past its tile is refused before the decoder allocates anything; and the content
+// size a frame must declare so that the decoder takes its one-shot path.
 import { RasterError } from "@/lib/raster/errors";
 
 const FRAME_MAGIC = 0xfd2fb528;
@@ -17,9 +18,15 @@ const BLOCK_MAXIMUM_SIZE = 128 * 1024;
  * RasterError when the frame layout is broken.
  */
 export function zstdOutputBound(data: Uint8Array): number {
+  let total = 0;
+  zstdWalk(data, (bound) => { total += bound; });
+  return total;
+}
+
+/** Walks the frames of `data`, calling `frame` with each one's output bound (see zstdOutputBound). */
+function zstdWalk(data: Uint8Array, frame: (bound: number) => void): void {
   const view = new DataView(data.buffer, data.byteOffset, data.byteLength);
   let at = 0;
-  let total = 0;
   for (let frames = 0; at < data.length; frames++) {
     if (frames >= MAX_FRAMES || at + 4 > data.length) throw new RasterError("corrupt", "a Zstd block has a broken frame layout");
     const magic = view.getUint32(at, true);
@@ -41,7 +48,7 @@ export function zstdOutputBound(data: Uint8Array): number {
     if (fcsBytes === 1) size = data[p];
     else if (fcsBytes === 2) size = view.getUint16(p, true) + 256;
     else if (fcsBytes === 4) size = view.getUint32(p, true);
-    else size = view.getUint32(p, true) + view.getUint32(p + 4, true) * 2 ** 32;
+    else if (fcsBytes === 8) size = view.getUint32(p, true) + view.getUint32(p + 4, true) * 2 ** 32;
     p += fcsBytes;
     let blockBound = 0;
     // walk the blocks: 3-byte headers (last flag, type, size); RLE blocks carry one byte
@@ -55,9 +62,37 @@ export function zstdOutputBound(data: Uint8Array): number {
       blockBound += type === 2 ? BLOCK_MAXIMUM_SIZE : blockSize;
       p += 3 + (type === 1 ? 1 : blockSize);
     }
-    total += fcsBytes === 0 ? blockBound : size;
+    frame(fcsBytes === 0 ? blockBound : size);
     at = p + (checksum ? 4 : 0);
   }
   if (at > data.length) throw new RasterError("corrupt", "a Zstd frame is cut short");
-  return total;
+}
+
+/**
+ * `data` with its frame's content size declared: unchanged when the frame declares one, else with a
+ * 4-byte Frame_Content_Size of `size` inserted (GDAL's streaming writer leaves it out), or refused when
+ * `size` is null. A declared size makes the decoder take its one-shot path, which fails cleanly on
+ * damaged data; its streaming path (zstddec 0.2) can loop without end on damaged data. Only blocks of
+ * one frame are accepted (what GDAL writes).
+ */
+export function withContentSize(data: Uint8Array, size: number | null): Uint8Array {
+  if (zstdFrameCount(data) !== 1 || new DataView(data.buffer, data.byteOffset, data.byteLength).getUint32(0, true) !== FRAME_MAGIC) {
+    throw new RasterError("unsupported", "a Zstd block of other than one frame");
+  }
+  const fhd = data[4];
+  if (fhd >> 6 !== 0 || (fhd >> 5) & 1) return data; // content size present (single-segment frames always carry it)
+  if (size === null) throw new RasterError("unsupported", "a Zstd frame without its content size");
+  const at = 6 + [0, 1, 2, 4][fhd & 3]; // after magic, descriptor, window byte and dictionary id
+  const out = new Uint8Array(data.length + 4);
+  out.set(data.subarray(0, at));
+  out[4] = fhd | 0x80; // Frame_Content_Size_flag = 2: four bytes
+  new DataView(out.buffer).setUint32(at, size, true);
+  out.set(data.subarray(at), at + 4);
+  return out;
+}
+
+function zstdFrameCount(data: Uint8Array): number {
+  let count = 0;
+  zstdWalk(data, () => count++);
+  return count;
 }

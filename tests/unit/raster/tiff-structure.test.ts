@@ -1,4 +1,7 @@
-import { afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from "vitest";
+import { afterAll, afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from "vitest";
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { checkTiffLayout } from "@/lib/raster/tiff-structure";
 import { inspectGeoTiff, readDem } from "@/lib/raster/read-geotiff";
 import { RasterError } from "@/lib/raster/errors";
@@ -79,4 +82,42 @@ describe("checkTiffLayout()", () => {
     const l = await checkTiffLayout(fixture("variants/bigtiff.tif"), 1e9);
     expect([l.bigTiff, l.width, l.height]).toEqual([true, 97, 61]);
   });
+});
+
+describe("readDem() on damaged copies of valid files", () => {
+  // Derived invariant: whatever bytes are overwritten, the reader returns a grid or a RasterError,
+  // prints nothing and stays fast. A fixed-seed generator makes the damage the same on every run.
+  const sources = ["f32-LZW-p2-strip", "f32-DEFLATE-p3-tile", "f32-PACKBITS-p1-tile", "f32-ZSTD-p2-tile", "f32-LERC_DEFLATE-tile",
+    "bigtiff", "i16-bigendian-LZW-p2", "bands-3-planar", "f32-NONE-p1-strip"];
+  const dir = mkdtempSync(path.join(tmpdir(), "rillscale-damaged-"));
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  it.each(sources)("40 damaged copies of %s each end in a grid or a RasterError, silently, within seconds", async (name) => {
+    let seed = 0x5eed + name.length;
+    const random = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
+    const original = readFileSync(fixture(`variants/${name}.tif`));
+    const warn = vi.spyOn(console, "warn");
+    const log = vi.spyOn(console, "log");
+    let failures = 0;
+    for (let k = 0; k < 40; k++) {
+      const bytes = Buffer.from(original);
+      const nearHead = random() < 0.5; // half of the damage lands in the header and first directory
+      for (let i = 0, n = 1 + Math.floor(random() * 8); i < n; i++) {
+        bytes[Math.floor(random() * (nearHead ? Math.min(bytes.length, 600) : bytes.length))] = Math.floor(random() * 256);
+      }
+      const file = path.join(dir, `${name}-${k}.tif`);
+      writeFileSync(file, bytes);
+      try {
+        await readDem(file, { band: name.startsWith("bands") ? 2 : undefined });
+      } catch (err) {
+        expect(err, `${file}: ${String(err)}`).toBeInstanceOf(RasterError);
+        failures++;
+      }
+    }
+    expect(warn).not.toHaveBeenCalled();
+    expect(log).not.toHaveBeenCalled();
+    warn.mockRestore();
+    log.mockRestore();
+    expect(failures).toBeGreaterThan(0); // the damage does reach the reader
+  }, 20_000);
 });
