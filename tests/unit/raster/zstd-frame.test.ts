@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { zstdOutputBound } from "@/lib/raster/zstd-frame";
+import { withContentSize, zstdOutputBound } from "@/lib/raster/zstd-frame";
 
 /** A frame header (RFC 8878 §3.1.1.1): magic, descriptor, window byte, optional 4-byte content size. */
 function frame(contentSize: number | null, blocks: Uint8Array[]): Uint8Array {
@@ -28,5 +28,24 @@ describe("zstdOutputBound() (RFC 8878 §3.1)", () => {
   it("refuses bytes that are no Zstd frame, and a frame cut short (derived)", () => {
     expect(() => zstdOutputBound(new Uint8Array([1, 2, 3, 4, 5]))).toThrow(/Zstd/);
     expect(() => zstdOutputBound(frame(5, [block(0, 5, false, [1, 2, 3, 4, 5])]))).toThrow(/cut short/);
+  });
+});
+
+describe("withContentSize() (RFC 8878 §3.1.1.1.4, Frame_Content_Size)", () => {
+  const bare = frame(null, [block(0, 5, true, [1, 2, 3, 4, 5])]);
+  it("inserts a 4-byte content size into a frame that lacks one, leaving the blocks intact (derived)", () => {
+    const sized = withContentSize(bare, 5);
+    expect(sized.length).toBe(bare.length + 4);
+    expect(sized[4] >> 6).toBe(2);
+    expect(zstdOutputBound(sized)).toBe(5);
+    expect(Array.from(sized.subarray(10))).toEqual(Array.from(bare.subarray(6)));
+  });
+  it("returns a frame that declares its size unchanged (derived)", () => {
+    const declared = frame(5, [block(0, 5, true, [1, 2, 3, 4, 5])]);
+    expect(withContentSize(declared, 99)).toBe(declared);
+  });
+  it("refuses a missing size when none is given, and blocks of two frames (derived)", () => {
+    expect(() => withContentSize(bare, null)).toThrow(/content size/);
+    expect(() => withContentSize(Uint8Array.from([...bare, ...bare]), 10)).toThrow(/one frame/);
   });
 });
