@@ -13,11 +13,16 @@ export const PROBLEM_TYPES = {
   "not-found": { status: 404, title: "Not found" },
   conflict: { status: 409, title: "Conflicts with the current state" },
   "payload-too-large": { status: 413, title: "Request body too large" },
+  "range-not-satisfiable": { status: 416, title: "The range is outside the file" },
   "unsupported-media-type": { status: 415, title: "Send application/json" },
   validation: { status: 422, title: "The request is not valid" },
   "too-many-requests": { status: 429, title: "Too many attempts" },
   internal: { status: 500, title: "Internal error" },
+  // The `error` of a failed job (GET /api/v1/jobs/{id}), not an HTTP answer of their own.
+  "job-input": { status: 422, title: "The dataset or parameters cannot give a result" },
+  "job-internal": { status: 500, title: "The analysis failed on our side" },
   "bad-gateway": { status: 502, title: "An upstream service failed" },
+  "service-unavailable": { status: 503, title: "Busy; try again shortly" },
 } as const;
 
 export type ProblemKind = keyof typeof PROBLEM_TYPES;
