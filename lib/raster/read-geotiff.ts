@@ -123,6 +123,11 @@ function describe(layout: TiffLayout, options: ReadDemOptions): Described {
   const ascii = layout.tags.get(TAG.GeoAsciiParams);
   const keys = geoDirectory ? parseGeoKeys(geoDirectory, numbers(TAG.GeoDoubleParams), typeof ascii === "string" ? ascii : "") : null;
   const crs = crsFromGeoKeys(keys, options.epsg);
+  // Cell sizes of a projected grid are taken in CRS units; on Mercator grids those grow as sec φ
+  // (a 30 m Web Mercator cell at 60° covers 15 m of ground), so such grids are refused, not mis-measured.
+  if (!crs.geographic && /\+proj=merc\b/.test(crs.proj4)) {
+    throw new RasterError("unsupported", `${crs.name} is a Mercator projection, whose cells are not their size on the ground; reproject the DEM to a UTM zone or to EPSG:4326`);
+  }
   const rasterType = keys?.get(GEOKEY.GTRasterType) === 2 ? "PixelIsPoint" : "PixelIsArea";
   const transform = modelTransform(numbers(TAG.ModelPixelScale), numbers(TAG.ModelTiepoint), numbers(TAG.ModelTransformation), rasterType);
   const georef: Georeference = { crs, transform, rasterType };

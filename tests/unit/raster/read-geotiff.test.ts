@@ -149,6 +149,10 @@ describe("readDem() georeferencing and CRS", () => {
     expect(dem.cellGeometry.area[0]).toBe(600);
   });
 
+  it("a Mercator grid (EPSG:3857) is refused: its cell sizes in CRS units are not ground sizes (Snyder 1987, §7: scale sec φ)", async () => {
+    await expect(readDem(fixture("variants/base.tif"), { epsg: 3857 })).rejects.toMatchObject({ code: "unsupported", detail: expect.stringMatching(/Mercator/) });
+  });
+
   it("an `epsg` option supplies the CRS a file lacks (derived)", async () => {
     const dem = await readDem(fixture("hostile/crs-user-defined.tif"), { epsg: 32633 });
     expect(dem.georef.crs.name).toBe("WGS 84 / UTM zone 33N");
