@@ -9,10 +9,12 @@ export interface DialogProps {
   children: ReactNode;
   /** Buttons shown at the bottom right. */
   actions?: ReactNode;
+  /** False when Escape must not close it (a secret shown once must be acknowledged with a button). */
+  dismissible?: boolean;
 }
 
 // The native <dialog> in modal mode: focus trapping, Escape and the backdrop come from the browser.
-export function Dialog({ open, title, onClose, children, actions }: DialogProps) {
+export function Dialog({ open, title, onClose, children, actions, dismissible = true }: DialogProps) {
   const ref = useRef<HTMLDialogElement>(null);
   const titleId = useId();
 
@@ -30,7 +32,7 @@ export function Dialog({ open, title, onClose, children, actions }: DialogProps)
       onClose={onClose}
       onCancel={(e) => {
         e.preventDefault();
-        onClose();
+        if (dismissible) onClose();
       }}
       className="w-full max-w-lg rounded-card border border-paper-line bg-white p-0 text-graphite shadow-xl backdrop:bg-graphite/40"
     >

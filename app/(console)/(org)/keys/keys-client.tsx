@@ -272,6 +272,7 @@ function SecretDialog({
       open
       title={rotated ? `New secret for “${apiKey.name}”` : `Key “${apiKey.name}” created`}
       onClose={onClose}
+      dismissible={false}
       actions={
         <Button variant="primary" onClick={onClose}>
           I have stored it
