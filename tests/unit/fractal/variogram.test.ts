@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { variogram, logSpacedLags } from "@/lib/fractal/variogram";
 import { fbmSurface } from "@/lib/fractal/synth/fbm-surface";
 import { makeGrid } from "@/lib/raster/grid";
-import { projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
+import { geographicCellGeometry, projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
 import { expectClose } from "@/tests/helpers/expect-close";
 
 const CELL = 30;
@@ -37,6 +37,13 @@ describe("variogram()", () => {
     const meanDx = dx.reduce((a, b) => a + b) / height;
     expectClose(ew.distance[1], 2 * meanDx, 1e-9);
     expectClose(ew.dimension.value, 2, 1e-9);
+  });
+
+  it("gives the same D on a 1″ geographic grid at the equator as on a projected grid of its cell size (derived; Snyder 1987 cell geometry)", () => {
+    const g = fbmSurface({ hurst: 0.5, seed: 8, size: 256 });
+    const geographic = geographicCellGeometry(256, 0.05, 1 / 3600, 1 / 3600);
+    const projected = projectedCellGeometry(256, geographic.dx[128], geographic.dy[128]);
+    expectClose(variogram(g, geographic).isotropic.dimension.value, variogram(g, projected).isotropic.dimension.value, 1e-6);
   });
 
   it("recovers D = 3 − H within ±0.05 on average over seeds 1–4 of 512² fBm, H ∈ {0.2, 0.5, 0.8} (common practice; METHODS.md; Mark & Aronson 1984; bias in docs/fractal-bias.md)", () => {
