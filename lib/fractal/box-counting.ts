@@ -1,4 +1,4 @@
-// Box-counting dimension of a plane set (e.g. Falconer 2003, Fractal Geometry, 2nd ed., §3.1): N(s) boxes of
+// Box-counting dimension of a plane set (e.g. Falconer 2003, Fractal Geometry, 2nd ed., Wiley): N(s) boxes of
 // side s meet the set, N(s) ∝ s^−D; for polylines the boxes a segment crosses by Amanatides & Woo (1987) traversal.
 import type { Grid } from "@/lib/raster/grid";
 import { WGS84_A } from "@/lib/raster/wgs84";

@@ -1,5 +1,5 @@
 // Two-dimensional discrete Fourier transform by the row–column decomposition of a separable transform
-// (e.g. Press et al. 2007, Numerical Recipes 3rd ed., §12.5), each 1-D pass by the radix-4 FFT of fft.js.
+// (e.g. Press et al. 2007, Numerical Recipes 3rd ed., ch. 12), each 1-D pass by the radix-4 FFT of fft.js.
 import FFT from "fft.js";
 
 /** Columns gathered per pass: 8 complex Float32 values fill one 64-byte cache line. */

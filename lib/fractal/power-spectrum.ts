@@ -1,5 +1,5 @@
 // Radially averaged power spectrum of a surface: P(|k|) ∝ |k|^−β with β = 2H + 2 = 8 − 2D
-// (Voss 1988, in The Science of Fractal Images; Huang & Turcotte 1989, J. Geophys. Res. 94(B6):7491–7495).
+// (Voss 1988, in The Science of Fractal Images; Huang & Turcotte 1989, J. Geophys. Res. 94(B6)).
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { fft2d } from "./fft2d";

@@ -1,4 +1,4 @@
-// Middle-thirds Cantor set (Cantor 1883, Math. Ann. 21:545–591): at level k, 2^k intervals of 3^−k;
+// Middle-thirds Cantor set (Cantor 1883, Math. Ann. 21): at level k, 2^k intervals of 3^−k;
 // boxes of side 3^j cells meet exactly 2^(k−j) of them; D = ln 2 / ln 3 (derived).
 import { makeGrid, type Grid } from "@/lib/raster/grid";
 

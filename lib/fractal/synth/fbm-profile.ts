@@ -1,5 +1,5 @@
 // Fractional Brownian profile by spectral synthesis (Voss 1985; Saupe 1988, The Science of Fractal Images,
-// §2.4): amplitude |k|^−(H+1/2) so the power spectrum falls as |k|^−(2H+1), inverse FFT, real part.
+// ch. 2): amplitude |k|^−(H+1/2) so the power spectrum falls as |k|^−(2H+1), inverse FFT, real part.
 import FFT from "fft.js";
 import { isPowerOfTwo, signedFrequency } from "@/lib/fractal/fft2d";
 import { normalDeviates } from "./mulberry32";

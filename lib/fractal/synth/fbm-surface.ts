@@ -1,5 +1,5 @@
 // Fractional Brownian surface by spectral synthesis (Voss 1985; Saupe 1988, The Science of Fractal Images,
-// Springer, §2.4): Gaussian random Fourier coefficients with amplitude |k|^−(H+1), inverse FFT, real part.
+// Springer, ch. 2): Gaussian random Fourier coefficients with amplitude |k|^−(H+1), inverse FFT, real part.
 import { makeGrid, type Grid } from "@/lib/raster/grid";
 import { fft2d, isPowerOfTwo, signedFrequency } from "@/lib/fractal/fft2d";
 import { normalDeviates } from "./mulberry32";

@@ -1,4 +1,4 @@
-// Koch curve (von Koch 1904, Arkiv för Matematik 1:681–704): each segment replaced by four of a third its
+// Koch curve (von Koch 1904, Arkiv för Matematik, Astronomi och Fysik 1): each segment replaced by four of a third its
 // length, the middle two forming a 60° peak; D = ln 4 / ln 3 (derived).
 
 /** The Koch curve of `level` substitutions from (0, 0) to (length, 0), x,y interleaved; 4^level segments. */

@@ -1,4 +1,4 @@
-// Sierpinski triangle as Pascal's triangle mod 2 (e.g. Peitgen, Jürgens & Saupe 1992, Chaos and Fractals, ch. 8):
+// Sierpinski triangle as Pascal's triangle mod 2 (e.g. Peitgen, Jürgens & Saupe 1992, Chaos and Fractals, Springer):
 // on 2^k rows, boxes of side 2^j meet exactly 3^(k−j) of it; D = ln 3 / ln 2 (derived).
 import { makeGrid, type Grid } from "@/lib/raster/grid";
 
