@@ -1,0 +1,19 @@
+// Brings up the same test stack as the integration suites (fresh database, `next start`, worker) for the
+// Python client's tests: prints one JSON line {url, key} and tears the stack down when stdin closes.
+import { acquireTestStack, releaseTestStack } from "@/tests/setup/stack";
+
+process.env.RILLSCALE_WEBHOOKS_ALLOW_PRIVATE ??= "1";
+const info = await acquireTestStack();
+process.stdout.write(JSON.stringify({ url: info.url, key: info.demoKeySecret }) + "\n");
+let stopping = false;
+const stop = async () => {
+  if (stopping) return;
+  stopping = true;
+  await releaseTestStack();
+  process.exit(0);
+};
+process.stdin.on("end", () => void stop());
+process.stdin.on("close", () => void stop());
+process.stdin.resume();
+process.on("SIGTERM", () => void stop());
+process.on("SIGINT", () => void stop());
