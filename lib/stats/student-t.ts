@@ -60,11 +60,24 @@ export function studentTCdf(t: number, df: number): number {
   return t >= 0 ? 1 - tail : tail;
 }
 
+// Fits in moving windows ask for the same few (p, df) pairs many thousands of times.
+const quantileCache = new Map<string, number>();
+const QUANTILE_CACHE_LIMIT = 4096;
+
 /** The t value with P(T ≤ t) = p. */
 export function studentTQuantile(p: number, df: number): number {
   if (!(p > 0 && p < 1)) throw new RangeError(`probability must be in (0, 1), got ${p}`);
   if (p === 0.5) return 0;
   if (p < 0.5) return -studentTQuantile(1 - p, df);
+  const key = `${p}|${df}`;
+  const cached = quantileCache.get(key);
+  if (cached !== undefined) return cached;
+  const t = bisectQuantile(p, df);
+  if (quantileCache.size < QUANTILE_CACHE_LIMIT) quantileCache.set(key, t);
+  return t;
+}
+
+function bisectQuantile(p: number, df: number): number {
   let lo = 0, hi = 1;
   while (studentTCdf(hi, df) < p) hi *= 2; // df ≥ 1 keeps this below 2^40 for p ≤ 1 − 1e-12
   for (let i = 0; i < 200 && hi - lo > 1e-13 * hi; i++) {
