@@ -98,12 +98,22 @@ export function buildIsStale(root = projectRoot): boolean {
 
 const nextBin = (root: string) => path.join(root, "node_modules", "next", "dist", "bin", "next");
 
+// Another checkout user's `next build` holds Next's build lock; wait for it rather than fail.
+const BUILD_WAIT_MS = 10 * 60_000;
+
 export function buildApp(root = projectRoot): void {
-  console.log("rillscale: building the app (next build)");
-  const r = spawnSync(process.execPath, [nextBin(root), "build"], {
-    cwd: root, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
-  });
-  if (r.status !== 0) throw new Error("next build failed");
+  const deadline = Date.now() + BUILD_WAIT_MS;
+  for (;;) {
+    console.log("rillscale: building the app (next build)");
+    const r = spawnSync(process.execPath, [nextBin(root), "build"], {
+      cwd: root, stdio: ["ignore", "inherit", "pipe"], encoding: "utf8", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
+    });
+    process.stderr.write(r.stderr ?? "");
+    if (r.status === 0) return;
+    if (!/Another next build process is already running/.test(r.stderr ?? "") || Date.now() > deadline) throw new Error("next build failed");
+    spawnSync("sleep", ["5"]);
+    if (!buildIsStale(root)) return;
+  }
 }
 
 export type Output = "inherit" | ((line: string) => void);

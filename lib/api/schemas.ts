@@ -132,7 +132,7 @@ export const AuditList = z.object({ items: z.array(AuditEvent), nextCursor: z.st
 export const AUDIT_PAGE_MAX = 200;
 export const AuditQuery = z.object({
   limit: z.coerce.number().int().min(1).max(AUDIT_PAGE_MAX).default(50),
-  cursor: z.string().max(100).optional(),
+  cursor: z.string().regex(/^\d{1,18}$/, { message: "must be a nextCursor value from a previous page" }).optional(),
   action: z.string().max(100).optional(),
   actor: z.string().max(254).optional().openapi({ description: "Actor id or label (e-mail, key prefix)." }),
   from: IsoDate.optional(),

@@ -38,6 +38,7 @@ describe("audit log", () => {
     const second = (await (await api(`/api/v1/audit?limit=2&cursor=${first.nextCursor}`, { cookie: auditor })).json()) as { items: { id: string }[] };
     expect(second.items.map((e) => e.id)).toEqual(ids.slice(2, 4).map(String));
     expect((await api("/api/v1/audit?limit=0", { cookie: auditor })).status).toBe(422);
+    expect((await api("/api/v1/audit?cursor=abc", { cookie: auditor })).status).toBe(422);
   });
 
   it("the application role cannot UPDATE, DELETE or TRUNCATE audit rows (issue 2)", async () => {
