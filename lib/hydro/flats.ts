@@ -20,12 +20,23 @@ export interface FlatResolution {
   maxIncrement: number;
 }
 
+// Per-cell state while resolving, in the increments array itself (no label grid): 0 off flats; a flat
+// cell holds its steps from higher terrain (1, 2, …) or NOT_REACHED, plus the WAY_OUT bit when it
+// touches a draining cell of equal elevation; a finished cell holds −increment until the last pass.
+/** a flat cell no breadth-first search from higher terrain has reached (yet) */
+const NOT_REACHED = 0x3fffffff;
+/** flag: the cell touches a draining cell of equal elevation, so it is one step from an outlet */
+const WAY_OUT = 1 << 30;
+
 /**
  * Finds the flats of `dem` (after depression filling without epsilon) and builds increments that route
- * each flat to its outlets: 2·(steps to the nearest draining cell of equal elevation) + (largest steps
- * from higher terrain on this flat − steps from higher terrain). Along a shortest path to an outlet the
- * first term falls by 2 per step while the second rises by at most 1, so every cell of a resolved flat
- * has a neighbour with a smaller increment (Barnes et al. 2014, §2).
+ * each flat to its outlets: 2·(steps to the nearest draining cell of equal elevation) + (M − steps from
+ * higher terrain), with M the largest steps from higher terrain (0 term on a flat without higher
+ * terrain). Along a shortest path to an outlet the first term falls by 2 per step while the second
+ * rises by at most 1, so every cell of a resolved flat has a neighbour with a smaller increment
+ * (Barnes et al. 2014, §2). Barnes et al. take M per flat; one M for all flats shifts each flat's
+ * increments by a constant, which keeps every difference D8 compares inside a flat, and spares a
+ * label grid and one pass over the flat cells.
  */
 export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortSignal } = {}): FlatResolution {
   const { data: z, width: w, height: h } = dem;
@@ -35,125 +46,229 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
   const signal = options.signal;
   signal?.throwIfAborted();
   const n = w * h;
-  const increments = new Int32Array(n);
+  const state = new Int32Array(n);
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
-  // 1. Flat cells: interior, valid, every neighbour valid and not lower (NaN fails `>=`). Edge cells
-  //    and cells next to nodata are never flat: with no lower neighbour they are outlets.
-  //    label: 0 off flats, −1 flat and not yet labelled, then the flat's number 1, 2, …
-  const label = new Int32Array(n);
+  // 1. Flat cells: interior, valid, every neighbour valid and not lower (NaN fails `>=`); one with a
+  //    higher neighbour is a high edge, step 1. Edge cells and cells next to nodata are never flat:
+  //    with no lower neighbour they are outlets. The flats are counted on the way by joining runs
+  //    of flat cells that touch the runs of the row above.
+  const runs = new FlatRuns(w);
   let flatCells = 0;
   for (let y = 1; y < h - 1; y++) {
     if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
-    for (let i = y * w + 1, end = y * w + w - 1; i < end; i++) {
+    runs.startRow();
+    for (let x = 1, i = y * w + 1; x < w - 1; x++, i++) {
       const zc = z[i];
       if (zc !== zc) continue;
-      let flat = true;
+      let flat = true, higher = false;
       for (let k = 0; k < 8; k++) {
-        if (!(z[i + offsets[k]] >= zc)) {
+        const zj = z[i + offsets[k]];
+        if (!(zj >= zc)) {
           flat = false;
           break;
         }
+        if (zj > zc) higher = true;
       }
       if (flat) {
-        label[i] = -1;
+        state[i] = higher ? 1 : NOT_REACHED;
         flatCells++;
+        runs.add(x);
       }
     }
+    runs.endRow();
   }
-  const result = { increments, flatCells, flats: 0, unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
+  const result = { increments: state, flatCells, flats: runs.components(), unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
   if (flatCells === 0) return result;
 
-  // 2. Number the flats by breadth-first search (`members` is the queue). Flat cells are interior, so
-  //    their eight offsets never leave the grid; a flat neighbour always has the cell's elevation, so
-  //    only off-flat neighbours tell apart the edges: higher ones make a high edge (step 1 from higher
-  //    terrain, kept in `increments` for now), equal ones a way out (step 1 towards lower terrain,
-  //    collected in `queue`).
-  const members = new Int32Array(flatCells);
+  // 2. Steps from higher terrain, breadth-first from the high edges. Flat cells are interior, so their
+  //    eight offsets never leave the grid, and a flat neighbour always has the cell's elevation; an
+  //    off-flat neighbour of equal elevation drains (or the cell would not be flat): a way out.
   const queue = new Int32Array(flatCells);
-  let filled = 0;
-  let flats = 0;
-  let outletSide = 0;
-  for (let i = 0; i < n; i++) {
-    if (label[i] !== -1) continue;
-    label[i] = ++flats;
-    members[filled++] = i;
-    for (let head = filled - 1; head < filled; head++) {
-      const c = members[head], zc = z[c];
-      let higher = false, way = false;
-      for (let k = 0; k < 8; k++) {
-        const j = c + offsets[k];
-        const lj = label[j];
-        if (lj === -1) {
-          label[j] = flats;
-          members[filled++] = j;
-        } else if (lj === 0) {
-          if (z[j] > zc) higher = true;
-          else way = true; // not lower, or c would not be flat
-        }
-      }
-      if (higher) increments[c] = 1;
-      if (way) queue[outletSide++] = c;
-    }
-  }
-  signal?.throwIfAborted();
-
-  // 3. Steps from higher terrain, breadth-first from the high edges (moved to the front of `members`,
-  //    which becomes the queue); the largest per flat in `maxAway`. A flat without higher neighbours
-  //    keeps 0 throughout.
-  const maxAway = new Int32Array(flats + 1);
   let tail = 0;
-  for (let m = 0; m < flatCells; m++) if (increments[members[m]] === 1) members[tail++] = members[m];
+  for (let i = 0; i < n; i++) if (state[i] === 1) queue[tail++] = i;
+  let maxAway = 0;
   for (let head = 0; head < tail; head++) {
-    const c = members[head], away = increments[c], flat = label[c];
-    if (away > maxAway[flat]) maxAway[flat] = away;
+    const c = queue[head], zc = z[c], away = state[c];
+    if (away > maxAway) maxAway = away;
+    let wayOut = false;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
-      if (increments[j] === 0 && label[j] > 0) {
-        increments[j] = away + 1;
-        members[tail++] = j;
+      const sj = state[j];
+      if (sj === NOT_REACHED) {
+        state[j] = away + 1;
+        queue[tail++] = j;
+      } else if (sj === 0 && z[j] === zc) {
+        wayOut = true;
+      }
+    }
+    if (wayOut) state[c] = away | WAY_OUT;
+  }
+  signal?.throwIfAborted();
+  // Flats without higher terrain were not searched: find their ways out directly.
+  if (tail < flatCells) {
+    for (let i = 0; i < n; i++) {
+      if (state[i] !== NOT_REACHED) continue;
+      const zc = z[i];
+      for (let k = 0; k < 8; k++) {
+        const j = i + offsets[k];
+        if (state[j] === 0 && z[j] === zc) {
+          state[i] = NOT_REACHED | WAY_OUT;
+          break;
+        }
       }
     }
   }
-  signal?.throwIfAborted();
 
-  // 4. Steps towards lower terrain, level by level from the cells beside a way out; a visited cell's
-  //    label turns negative. The final increment replaces the away-steps in place.
-  for (let m = 0; m < outletSide; m++) label[queue[m]] = -label[queue[m]];
-  tail = outletSide;
+  // 3. Steps towards lower terrain, level by level from the cells with a way out (step 1); the final
+  //    increment is stored negated, which also marks the cell visited.
+  const awayTerm = (v: number) => {
+    const away = v & ~WAY_OUT;
+    return away === NOT_REACHED ? 0 : maxAway - away;
+  };
+  tail = 0;
   let maxIncrement = 0;
-  for (let head = 0, step = 1; head < tail; step++) {
+  for (let i = 0; i < n; i++) {
+    const v = state[i];
+    if (v > 0 && (v & WAY_OUT) !== 0) {
+      const inc = 2 + awayTerm(v);
+      if (inc > maxIncrement) maxIncrement = inc;
+      state[i] = -inc;
+      queue[tail++] = i;
+    }
+  }
+  for (let head = 0, step = 2; head < tail; step++) {
     const levelEnd = tail;
     for (; head < levelEnd; head++) {
       const c = queue[head];
-      const away = increments[c];
-      const inc = 2 * step + (away === 0 ? 0 : maxAway[-label[c]] - away);
-      increments[c] = inc;
-      if (inc > maxIncrement) maxIncrement = inc;
       for (let k = 0; k < 8; k++) {
         const j = c + offsets[k];
-        if (label[j] > 0) {
-          label[j] = -label[j];
+        const sj = state[j];
+        if (sj > 0) {
+          const inc = 2 * step + awayTerm(sj);
+          if (inc > maxIncrement) maxIncrement = inc;
+          state[j] = -inc;
           queue[tail++] = j;
         }
       }
     }
   }
 
-  // 5. Flats the search never reached have no way out: clear their away-steps and count them.
+  // 4. Increments back to positive. Cells still positive belong to flats without a way out: they get
+  //    0 and their flats are counted by a search over them alone.
   let unresolvedCells = 0;
   let unresolvedFlats = 0;
-  const counted = new Uint8Array(flats + 1);
   for (let i = 0; i < n; i++) {
-    const l = label[i];
-    if (l <= 0) continue;
-    increments[i] = 0;
-    unresolvedCells++;
-    if (counted[l] === 0) {
-      counted[l] = 1;
+    const v = state[i];
+    if (v < 0) {
+      state[i] = -v;
+    } else if (v > 0) {
       unresolvedFlats++;
+      state[i] = 0;
+      queue[0] = i;
+      for (let head = 0, end = 1; head < end; head++) {
+        const c = queue[head];
+        unresolvedCells++;
+        for (let k = 0; k < 8; k++) {
+          const j = c + offsets[k];
+          if (state[j] > 0) {
+            state[j] = 0;
+            queue[end++] = j;
+          }
+        }
+      }
     }
   }
-  return { ...result, flats, unresolvedFlats, unresolvedCells, maxIncrement };
+  return { ...result, unresolvedFlats, unresolvedCells, maxIncrement };
+}
+
+/**
+ * Counts 8-connected groups of flat cells from the row scan: each row's flat cells form runs; a run
+ * joins every run of the row above that it touches (columns overlapping or diagonally adjacent), with
+ * union–find over run numbers (Rosenfeld & Pfaltz 1966, J. ACM 13(4):471–494, two-pass labelling).
+ * Memory: one entry per run, and two rows of runs.
+ */
+class FlatRuns {
+  private parent = new Int32Array(1024);
+  private runs = 0;
+  private joins = 0;
+  private prevStart: Int32Array;
+  private prevEnd: Int32Array;
+  private prevId: Int32Array;
+  private prevCount = 0;
+  private curStart: Int32Array;
+  private curEnd: Int32Array;
+  private curId: Int32Array;
+  private curCount = 0;
+
+  constructor(width: number) {
+    const most = (width >> 1) + 1; // runs are separated by at least one cell
+    this.prevStart = new Int32Array(most);
+    this.prevEnd = new Int32Array(most);
+    this.prevId = new Int32Array(most);
+    this.curStart = new Int32Array(most);
+    this.curEnd = new Int32Array(most);
+    this.curId = new Int32Array(most);
+  }
+
+  startRow(): void {
+    this.curCount = 0;
+  }
+
+  /** column x of the current row is flat; columns arrive in increasing order */
+  add(x: number): void {
+    const last = this.curCount - 1;
+    if (last >= 0 && this.curEnd[last] === x - 1) {
+      this.curEnd[last] = x;
+      return;
+    }
+    if (this.runs === this.parent.length) {
+      const grown = new Int32Array(this.runs * 2);
+      grown.set(this.parent);
+      this.parent = grown;
+    }
+    this.parent[this.runs] = this.runs;
+    this.curStart[this.curCount] = x;
+    this.curEnd[this.curCount] = x;
+    this.curId[this.curCount++] = this.runs++;
+  }
+
+  /** joins the current row's runs to the touching runs of the row above, then moves down a row */
+  endRow(): void {
+    let p = 0, q = 0;
+    while (p < this.prevCount && q < this.curCount) {
+      if (this.prevEnd[p] + 1 < this.curStart[q]) p++;
+      else if (this.curEnd[q] + 1 < this.prevStart[p]) q++;
+      else {
+        this.join(this.prevId[p], this.curId[q]);
+        if (this.prevEnd[p] < this.curEnd[q]) p++;
+        else q++;
+      }
+    }
+    [this.prevStart, this.curStart] = [this.curStart, this.prevStart];
+    [this.prevEnd, this.curEnd] = [this.curEnd, this.prevEnd];
+    [this.prevId, this.curId] = [this.curId, this.prevId];
+    this.prevCount = this.curCount;
+  }
+
+  components(): number {
+    return this.runs - this.joins;
+  }
+
+  private root(a: number): number {
+    const parent = this.parent;
+    while (parent[a] !== a) {
+      parent[a] = parent[parent[a]]; // path halving
+      a = parent[a];
+    }
+    return a;
+  }
+
+  private join(a: number, b: number): void {
+    const ra = this.root(a), rb = this.root(b);
+    if (ra === rb) return;
+    this.parent[ra] = rb;
+    this.joins++;
+  }
 }

@@ -62,6 +62,45 @@ describe("resolveFlats()", () => {
     expect(Array.from(r.increments).every((v) => v === 0)).toBe(true);
   });
 
+  it("counts a U-shaped level pit as one flat and a one-cell pit as another (derived: 8-connected groups)", () => {
+    const dem = gridOf([
+      [9, 9, 9, 9, 9, 9, 9, 9],
+      [9, 1, 5, 1, 5, 5, 5, 9],
+      [9, 1, 5, 1, 5, 2, 5, 9],
+      [9, 1, 1, 1, 5, 5, 5, 9],
+      [9, 9, 9, 9, 9, 9, 9, 9],
+    ]);
+    expect(resolveFlats(dem)).toMatchObject({ flatCells: 8, flats: 2, unresolvedFlats: 2, unresolvedCells: 8 });
+  });
+
+  it("counts the flats a fill leaves on random DEMs as the 8-connected groups of flat cells (invariant)", () => {
+    for (let seed = 61; seed <= 64; seed++) {
+      const dem = randomDem(35, 26, seed, 0.03);
+      priorityFlood(dem);
+      const { increments, flats } = resolveFlats(dem);
+      // reference count by flood fill over the cells a resolved flat gives an increment
+      const seen = new Uint8Array(increments.length);
+      let groups = 0;
+      for (let i = 0; i < increments.length; i++) {
+        if (increments[i] === 0 || seen[i]) continue;
+        groups++;
+        const stack = [i];
+        seen[i] = 1;
+        while (stack.length > 0) {
+          const c = stack.pop() as number, x = c % 35, y = (c - x) / 35;
+          for (let k = 0; k < 8; k++) {
+            const nx = x + D8_DX[k], ny = y + D8_DY[k], j = ny * 35 + nx;
+            if (nx >= 0 && ny >= 0 && nx < 35 && ny < 26 && increments[j] > 0 && !seen[j]) {
+              seen[j] = 1;
+              stack.push(j);
+            }
+          }
+        }
+      }
+      expect(flats).toBe(groups);
+    }
+  });
+
   it("finds no flat on a 1×1 DEM, a 2×2 DEM or a DEM fully of nodata (derived: edge cells are never flat)", () => {
     expect(resolveFlats(gridOf([[4]])).flatCells).toBe(0);
     expect(resolveFlats(gridOf([[4, 4], [4, 4]])).flatCells).toBe(0);
