@@ -90,8 +90,8 @@ export function flowAccumulation(
   const order = new Int32Array(validCells);
   let tail = 0;
   for (let s = 0; s < n; s++) {
-    if (donors[s] !== 0 || cells[s] === 0) continue; // waiting for donors, passed already, or nodata
     if ((s & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
+    if (donors[s] !== 0 || cells[s] === 0) continue; // waiting for donors, passed already, or nodata
     let c = s;
     for (;;) {
       order[tail++] = c;
