@@ -73,8 +73,8 @@ export function OrgShell({ devMail, children }: OrgShellProps) {
           </div>
         </div>
       </header>
-      <div className="mx-auto flex w-full max-w-console flex-1 gap-8 px-6 py-6">
-        <nav aria-label="Console" className="w-44 shrink-0">
+      <div className="mx-auto flex w-full max-w-console flex-1 gap-6 px-6 py-6">
+        <nav aria-label="Console" className="w-40 shrink-0">
           <ul className="flex flex-col gap-0.5">
             {items.map((item) => {
               const current = item.href === "/" ? pathname === "/" : pathname.startsWith(item.href);

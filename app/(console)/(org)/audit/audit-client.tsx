@@ -11,6 +11,7 @@ import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { TextField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
+import { UtcCaption } from "@/components/ui/utc-caption";
 
 const PAGE_SIZE = 50;
 
@@ -147,9 +148,10 @@ export function AuditPanel() {
         <>
           <div className="card overflow-x-auto">
             <table className="table-dense" aria-label="Audit entries" aria-busy={page.isFetching}>
+              <UtcCaption />
               <thead>
                 <tr>
-                  <th scope="col">Time (UTC)</th>
+                  <th scope="col">Time</th>
                   <th scope="col">Action</th>
                   <th scope="col">Actor</th>
                   <th scope="col">Target</th>
@@ -175,11 +177,11 @@ export function AuditPanel() {
                         <span className="font-mono">{event.action}</span>
                       </Badge>
                     </td>
-                    <td className="whitespace-nowrap">
-                      {event.actor.label}{" "}
-                      <span className="text-xs text-graphite-muted">({event.actor.kind.replace("_", " ")})</span>
+                    <td>
+                      <span className="block whitespace-nowrap">{event.actor.label}</span>
+                      <span className="text-xs text-graphite-muted">{event.actor.kind.replace("_", " ")}</span>
                     </td>
-                    <td className="max-w-[12rem] truncate font-mono text-xs" title={event.target ?? undefined}>
+                    <td className="max-w-[10rem] truncate font-mono text-xs" title={event.target ?? undefined}>
                       {event.target ?? "—"}
                     </td>
                     <td className="whitespace-nowrap font-mono text-xs">{event.ip ?? "—"}</td>

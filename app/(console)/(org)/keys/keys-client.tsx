@@ -22,6 +22,7 @@ import { CopyButton } from "@/components/ui/copy-button";
 import { Dialog } from "@/components/ui/dialog";
 import { CheckboxGroup, TextField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
+import { UtcCaption } from "@/components/ui/utc-caption";
 
 const KEYS_QUERY_KEY = ["keys"] as const;
 const DEFAULT_GRACE_HOURS = 24;
@@ -81,14 +82,15 @@ export function KeysPanel() {
       {keys.data !== undefined && (
         <div className="card overflow-x-auto">
           <table className="table-dense" aria-label="API keys">
+            <UtcCaption />
             <thead>
               <tr>
                 <th scope="col">Name</th>
                 <th scope="col">Key</th>
                 <th scope="col">Scopes</th>
-                <th scope="col">Created (UTC)</th>
-                <th scope="col">Expires (UTC)</th>
-                <th scope="col">Last used (UTC)</th>
+                <th scope="col">Created</th>
+                <th scope="col">Expires</th>
+                <th scope="col">Last used</th>
                 <th scope="col">Status</th>
                 {manage && (
                   <th scope="col">

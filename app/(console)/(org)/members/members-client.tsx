@@ -14,6 +14,7 @@ import { Button } from "@/components/ui/button";
 import { ConfirmDialog } from "@/components/ui/confirm-dialog";
 import { SelectField, TextField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
+import { UtcCaption } from "@/components/ui/utc-caption";
 
 const MEMBERS_QUERY_KEY = ["members"] as const;
 const INVITATIONS_QUERY_KEY = ["invitations"] as const;
@@ -52,12 +53,13 @@ export function MembersPanel() {
       {members.data !== undefined && (
         <div className="card overflow-x-auto">
           <table className="table-dense" aria-label="Members">
+            <UtcCaption />
             <thead>
               <tr>
                 <th scope="col">Name</th>
                 <th scope="col">E-mail</th>
                 <th scope="col">Role</th>
-                <th scope="col">Joined (UTC)</th>
+                <th scope="col">Joined</th>
                 {manage && (
                   <th scope="col">
                     <span className="sr-only">Actions</span>
@@ -114,12 +116,13 @@ export function MembersPanel() {
           </h2>
           <div className="card overflow-x-auto">
             <table className="table-dense" aria-label="Pending invitations">
+              <UtcCaption />
               <thead>
                 <tr>
                   <th scope="col">E-mail</th>
                   <th scope="col">Role</th>
-                  <th scope="col">Sent (UTC)</th>
-                  <th scope="col">Link expires (UTC)</th>
+                  <th scope="col">Sent</th>
+                  <th scope="col">Link expires</th>
                 </tr>
               </thead>
               <tbody>

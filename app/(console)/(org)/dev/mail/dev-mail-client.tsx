@@ -8,6 +8,7 @@ import { formatInstantPrecise } from "@/components/format/instant";
 import { Alert } from "@/components/ui/alert";
 import { Button } from "@/components/ui/button";
 import { PageHeader } from "@/components/ui/page-header";
+import { UtcCaption } from "@/components/ui/utc-caption";
 
 // Links in caught mail (invitations, resets) become clickable so a developer can follow a flow end to end.
 const URL_PATTERN = /(https?:\/\/[^\s<>"]+)/g;
@@ -50,9 +51,10 @@ export function DevMailPanel() {
       {mail.data !== undefined && (
         <div className="card overflow-x-auto">
           <table className="table-dense" aria-label="Caught mail">
+            <UtcCaption />
             <thead>
               <tr>
-                <th scope="col">Received (UTC)</th>
+                <th scope="col">Received</th>
                 <th scope="col">To</th>
                 <th scope="col">Subject</th>
                 <th scope="col">
