@@ -1,7 +1,7 @@
 // Drizzle schema: one table per entity, camelCase fields mapped to snake_case columns (casing: "snake_case"
 // in db/client.ts and drizzle.config.ts). Migrations in drizzle/ are generated from this file.
 import { sql } from "drizzle-orm";
-import { bigint, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uuid } from "drizzle-orm/pg-core";
+import { bigint, index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, unique, uuid } from "drizzle-orm/pg-core";
 
 const ts = () => timestamp({ withTimezone: true, mode: "date" });
 
@@ -137,3 +137,96 @@ export type PasswordReset = typeof passwordResets.$inferSelect;
 export type LoginThrottle = typeof loginThrottles.$inferSelect;
 export type AuditEventRow = typeof auditEvents.$inferSelect;
 export type NewAuditEvent = typeof auditEvents.$inferInsert;
+
+// ── Datasets, jobs and results (issue 6) ─────────────────────────────────────────────────────────
+export const datasetFormat = pgEnum("dataset_format", ["geotiff", "geojson", "zip"]);
+export const jobStatus = pgEnum("job_status", ["queued", "running", "succeeded", "failed", "cancelled"]);
+
+/** An accepted upload: its bytes live in the object store under a content key; one row per (org, sha256). */
+export const datasets = pgTable(
+  "datasets",
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    name: text().notNull(),
+    format: datasetFormat().notNull(),
+    mediaType: text().notNull(),
+    sha256: text().notNull(),
+    sizeBytes: bigint({ mode: "number" }).notNull(),
+    storageKey: text().notNull(),
+    /** What the sandboxed inspection read: CRS, lon/lat bbox, size, cell size, data type, nodata, counts. */
+    metadata: jsonb().$type<Record<string, unknown>>().notNull(),
+    createdBy: jsonb().$type<{ kind: string; id: string | null; label: string }>().notNull(),
+    createdAt: ts().notNull().defaultNow(),
+  },
+  (t) => [unique().on(t.orgId, t.sha256), index().on(t.orgId, t.createdAt, t.id)],
+);
+
+/** Our record of each analysis (pg-boss only delivers it): status, stage, progress, timings and the error. */
+export const jobs = pgTable(
+  "jobs",
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    datasetId: uuid().references(() => datasets.id, { onDelete: "set null" }), // kept when the dataset is deleted
+    kind: text().notNull(),
+    /** The parameters after the kind's schema applied its defaults (canonical JSON is hashed into cacheKey). */
+    params: jsonb().$type<Record<string, unknown>>().notNull(),
+    cacheKey: text().notNull(),
+    status: jobStatus().notNull().default("queued"),
+    stage: text(),
+    progress: real().notNull().default(0),
+    error: jsonb().$type<Record<string, unknown>>(),
+    attempts: integer().notNull().default(0),
+    /** Set when the result was reused from an earlier job with the same cache key. */
+    cachedFromJobId: uuid(),
+    submittedBy: jsonb().$type<{ kind: string; id: string | null; label: string }>().notNull(),
+    workerId: text(),
+    heartbeatAt: ts(),
+    cancelRequestedAt: ts(),
+    createdAt: ts().notNull().defaultNow(),
+    startedAt: ts(),
+    finishedAt: ts(),
+    updatedAt: ts().notNull().defaultNow(),
+  },
+  (t) => [index().on(t.orgId, t.createdAt, t.id), index().on(t.orgId, t.status), index().on(t.datasetId), index().on(t.cacheKey)],
+);
+
+/** One row per succeeded job (upserted, so a retried job never leaves two). */
+export const jobResults = pgTable("job_results", {
+  jobId: uuid().primaryKey().references(() => jobs.id, { onDelete: "cascade" }),
+  summary: jsonb().$type<Record<string, unknown>>().notNull(),
+  timingsS: jsonb().$type<Record<string, number>>().notNull(),
+  /** [{name, mediaType, size, sha256, key}]; keys may point at another job's objects when the result was reused. */
+  artifacts: jsonb().$type<{ name: string; mediaType: string; size: number; sha256: string; key: string }[]>().notNull(),
+  softwareVersion: text().notNull(),
+  createdAt: ts().notNull().defaultNow(),
+});
+
+/** Idempotency-Key records (draft-ietf-httpapi-idempotency-key-header), scoped to org + caller. */
+export const idempotencyKeys = pgTable(
+  "idempotency_keys",
+  {
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    principal: text().notNull(),
+    key: text().notNull(),
+    fingerprint: text().notNull(),
+    responseStatus: integer(),
+    responseBody: jsonb(),
+    responseHeaders: jsonb().$type<Record<string, string>>(),
+    createdAt: ts().notNull().defaultNow(),
+    expiresAt: ts().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.orgId, t.principal, t.key] }), index().on(t.expiresAt)],
+);
+
+/** Fixed-window request counters per bucket ("key:<id>", "org:<id>", "user:<id>"). */
+export const rateLimitCounters = pgTable("rate_limit_counters", {
+  bucket: text().primaryKey(),
+  windowStartedAt: ts().notNull(),
+  count: integer().notNull().default(0),
+});
+
+export type DatasetRow = typeof datasets.$inferSelect;
+export type JobRow = typeof jobs.$inferSelect;
+export type JobResultRow = typeof jobResults.$inferSelect;
