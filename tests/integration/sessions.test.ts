@@ -77,6 +77,26 @@ describe("sessions", () => {
     await signIn("analyst@tallow-creek.example"); // clears the analyst's failure count
   });
 
+  it("an unknown e-mail costs about as much time as a wrong password: a dummy bcrypt hash is checked (OWASP authentication cheat sheet)", async () => {
+    const m = await newMember("timing");
+    const time = async (email: string) => {
+      const t = performance.now();
+      expect((await api("/api/v1/session", { method: "POST", body: { email, password: "wrong password" } })).status).toBe(401);
+      return performance.now() - t;
+    };
+    const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+    const known: number[] = [];
+    const unknown: number[] = [];
+    // Fewer than the account limit, so the known account is not locked; interleaved so load affects both alike.
+    for (let i = 0; i < ACCOUNT_LIMIT.failures - 1; i++) {
+      known.push(await time(m.email));
+      unknown.push(await time(`${unique("ghost")}@nowhere.example`));
+    }
+    const ratio = median(unknown) / median(known);
+    expect(ratio).toBeGreaterThan(0.5);
+    expect(ratio).toBeLessThan(2);
+  });
+
   it("cookie-authenticated mutations from another site are refused; API-key requests are exempt (OWASP CSRF cheat sheet)", async () => {
     const body = { name: "csrf", scopes: ["jobs:read"] };
     const evil = await api("/api/v1/keys", { method: "POST", cookie: admin, body, headers: { origin: "https://evil.example" } });
