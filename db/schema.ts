@@ -1,7 +1,9 @@
 // Drizzle schema: one table per entity, camelCase fields mapped to snake_case columns (casing: "snake_case"
 // in db/client.ts and drizzle.config.ts). Migrations in drizzle/ are generated from this file.
 import { sql } from "drizzle-orm";
-import { bigint, index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, unique, uuid } from "drizzle-orm/pg-core";
+import {
+  bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, unique, uuid,
+} from "drizzle-orm/pg-core";
 
 const ts = () => timestamp({ withTimezone: true, mode: "date" });
 
@@ -227,6 +229,28 @@ export const rateLimitCounters = pgTable("rate_limit_counters", {
   count: integer().notNull().default(0),
 });
 
+// ── Stream networks for the feature service (issue 7) ────────────────────────────────────────────────
+/** A PostGIS LineString in lon/lat (EPSG:4326); lib/features writes it with ST_GeomFromGeoJSON and reads ST_AsGeoJSON. */
+const lineString4326 = customType<{ data: string; driverData: string }>({ dataType: () => "geometry(LineString,4326)" });
+
+/** The stream links of a succeeded drainage or network job, one row per link; the GiST index serves bbox queries. */
+export const networkFeatures = pgTable(
+  "network_features",
+  {
+    jobId: uuid().notNull().references(() => jobs.id, { onDelete: "cascade" }),
+    featureId: integer().notNull(), // the link id of the job's network artifact
+    downstream: integer(),
+    strahlerOrder: integer().notNull(),
+    shreveMagnitude: doublePrecision().notNull(),
+    lengthM: doublePrecision().notNull(),
+    dropM: doublePrecision(),
+    areaM2: doublePrecision("area_m2"),
+    geom: lineString4326().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.jobId, t.featureId] }), index().using("gist", t.geom), index().on(t.jobId, t.strahlerOrder)],
+);
+
 export type DatasetRow = typeof datasets.$inferSelect;
 export type JobRow = typeof jobs.$inferSelect;
 export type JobResultRow = typeof jobResults.$inferSelect;
+export type NetworkFeatureRow = typeof networkFeatures.$inferSelect;
