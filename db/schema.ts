@@ -2,7 +2,7 @@
 // in db/client.ts and drizzle.config.ts). Migrations in drizzle/ are generated from this file.
 import { sql } from "drizzle-orm";
 import {
-  bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, unique, uuid,
+  bigint, boolean, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, unique, uuid,
 } from "drizzle-orm/pg-core";
 
 const ts = () => timestamp({ withTimezone: true, mode: "date" });
@@ -254,3 +254,94 @@ export type DatasetRow = typeof datasets.$inferSelect;
 export type JobRow = typeof jobs.$inferSelect;
 export type JobResultRow = typeof jobResults.$inferSelect;
 export type NetworkFeatureRow = typeof networkFeatures.$inferSelect;
+
+// ── Provenance and webhooks (issue 7) ────────────────────────────────────────────────────────────
+/** Ed25519 provenance signing keys. The private JWK is stored only sealed (AES-256-GCM under a key derived from
+ *  the server pepper, lib/provenance/sealed-box.ts) and erased at retirement; public keys stay published. */
+export const signingKeys = pgTable("signing_keys", {
+  kid: text().primaryKey(), // RFC 7638 thumbprint
+  publicJwk: jsonb().$type<Record<string, unknown>>().notNull(),
+  sealedPrivateJwk: text(),
+  createdAt: ts().notNull().defaultNow(),
+  retiredAt: ts(),
+});
+
+/** The signed PROV-JSON of a succeeded job: the document exactly as signed and its detached JWS. */
+export const jobProvenance = pgTable("job_provenance", {
+  jobId: uuid().primaryKey().references(() => jobs.id, { onDelete: "cascade" }),
+  orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+  document: text().notNull(),
+  documentSha256: text().notNull(),
+  jws: text().notNull(),
+  kid: text().notNull().references(() => signingKeys.kid),
+  createdAt: ts().notNull().defaultNow(),
+});
+
+/** Marks a finished job as followed up (provenance written, webhook deliveries queued) exactly once. */
+export const jobFollowUps = pgTable("job_follow_ups", {
+  jobId: uuid().primaryKey().references(() => jobs.id, { onDelete: "cascade" }),
+  status: jobStatus().notNull(),
+  doneAt: ts().notNull().defaultNow(),
+});
+
+/** A receiver an org admin registered; secrets are sealed, the previous one signs too until previousUntil. */
+export const webhookEndpoints = pgTable(
+  "webhook_endpoints",
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    url: text().notNull(),
+    description: text().notNull().default(""),
+    events: text().array().notNull(),
+    sealedSecret: text().notNull(),
+    sealedPreviousSecret: text(),
+    previousUntil: ts(),
+    enabled: boolean().notNull().default(true),
+    disabledReason: text(),
+    createdAt: ts().notNull().defaultNow(),
+    updatedAt: ts().notNull().defaultNow(),
+  },
+  (t) => [index().on(t.orgId)],
+);
+
+/** One message to one endpoint; its id is the stable `webhook-id` of every attempt. */
+export const webhookDeliveries = pgTable(
+  "webhook_deliveries",
+  {
+    id: text().primaryKey(), // msg_<uuid>
+    endpointId: uuid().notNull().references(() => webhookEndpoints.id, { onDelete: "cascade" }),
+    orgId: uuid().notNull().references(() => organisations.id, { onDelete: "cascade" }),
+    event: text().notNull(),
+    jobId: uuid(),
+    payload: text().notNull(),
+    state: text().$type<"pending" | "delivered" | "failed">().notNull().default("pending"),
+    attempts: integer().notNull().default(0),
+    nextAttemptAt: ts(),
+    lastStatus: integer(),
+    lastError: text(),
+    createdAt: ts().notNull().defaultNow(),
+    deliveredAt: ts(),
+  },
+  (t) => [index().on(t.state, t.nextAttemptAt), index().on(t.endpointId, t.createdAt)],
+);
+
+export const webhookAttempts = pgTable(
+  "webhook_attempts",
+  {
+    id: bigint({ mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
+    deliveryId: text().notNull().references(() => webhookDeliveries.id, { onDelete: "cascade" }),
+    attempt: integer().notNull(),
+    at: ts().notNull(),
+    status: integer(),
+    durationMs: integer().notNull(),
+    error: text(),
+    responseExcerpt: text().notNull().default(""),
+  },
+  (t) => [index().on(t.deliveryId, t.attempt)],
+);
+
+export type SigningKeyRow = typeof signingKeys.$inferSelect;
+export type JobProvenanceRow = typeof jobProvenance.$inferSelect;
+export type WebhookEndpointRow = typeof webhookEndpoints.$inferSelect;
+export type WebhookDeliveryRow = typeof webhookDeliveries.$inferSelect;
+export type WebhookAttemptRow = typeof webhookAttempts.$inferSelect;
