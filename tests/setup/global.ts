@@ -10,6 +10,10 @@ declare module "vitest" {
 }
 
 export default async function setup(project: TestProject) {
+  // The webhook suite delivers to a loopback receiver and waits for retries: allow it and retry fast
+  // (the server and worker inherit this environment).
+  process.env.RILLSCALE_WEBHOOKS_ALLOW_PRIVATE ??= "1";
+  process.env.RILLSCALE_WEBHOOKS_RETRY_BASE_MS ??= "200";
   const info = await acquireTestStack();
   project.provide("rillscale", info);
   return releaseTestStack;

@@ -3,6 +3,7 @@
 import { acquireTestStack, releaseTestStack } from "@/tests/setup/stack";
 
 process.env.RILLSCALE_WEBHOOKS_ALLOW_PRIVATE ??= "1";
+process.env.RILLSCALE_WEBHOOKS_RETRY_BASE_MS ??= "200";
 const info = await acquireTestStack();
 process.stdout.write(JSON.stringify({ url: info.url, key: info.demoKeySecret }) + "\n");
 let stopping = false;
