@@ -1,8 +1,8 @@
 // The project-local PostgreSQL 15 cluster: .data/postgres, 127.0.0.1 only, our own port, started once and reused.
 // initdb refuses to run as root, so as root the server runs as Debian's `postgres` system user.
 import { execFileSync, spawnSync } from "node:child_process";
-import { randomBytes } from "node:crypto";
-import { chmodSync, chownSync, existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { createHash, randomBytes } from "node:crypto";
+import { chmodSync, chownSync, existsSync, lstatSync, mkdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import pg from "pg";
 
@@ -22,9 +22,6 @@ export interface ClusterInfo {
 
 export const projectRoot = path.resolve(import.meta.dirname, "..");
 const dataRoot = (root: string) => path.join(root, ".data");
-const pgData = (root: string) => path.join(dataRoot(root), "postgres");
-// Socket directory and server log live beside the data, owned by the server's user.
-const pgRun = (root: string) => path.join(dataRoot(root), "pg-run");
 const credentialsFile = (root: string) => path.join(dataRoot(root), "cluster.json");
 
 const isRoot = process.getuid?.() === 0;
@@ -52,15 +49,26 @@ function ownForServer(dir: string, mode: number) {
   chmodSync(dir, mode);
 }
 
-/** The postgres user must be able to reach .data through every parent directory. */
-function checkTraversable(dir: string) {
-  if (!isRoot) return;
-  const r = spawnSync("runuser", ["-u", SUPERUSER, "--", "test", "-x", dir]);
-  if (r.status !== 0) {
-    throw new Error(
-      `the '${SUPERUSER}' user cannot enter ${dir}; make its parent directories traversable (chmod o+x) or clone the project elsewhere`,
-    );
+function reachableByServer(dir: string): boolean {
+  return !isRoot || spawnSync("runuser", ["-u", SUPERUSER, "--", "test", "-x", dir]).status === 0;
+}
+
+/**
+ * Where the server keeps its data and socket: .data/postgres and .data/pg-run. When the postgres user cannot
+ * enter the checkout (a clone under a private home directory), they live in /var/lib/postgresql/rillscale/<hash>
+ * instead, with .data/postgres a symlink to them so the cluster still belongs to this checkout.
+ */
+function serverDirs(root: string): { data: string; run: string } {
+  const local = { data: path.join(dataRoot(root), "postgres"), run: path.join(dataRoot(root), "pg-run") };
+  mkdirSync(dataRoot(root), { recursive: true });
+  if (reachableByServer(dataRoot(root))) return local;
+  const base = path.join("/var/lib/postgresql/rillscale", createHash("sha256").update(root).digest("hex").slice(0, 12));
+  const far = { data: path.join(base, "data"), run: path.join(base, "run") };
+  if (!lstatSync(local.data, { throwIfNoEntry: false })) {
+    mkdirSync(base, { recursive: true, mode: 0o755 });
+    symlinkSync(far.data, local.data);
   }
+  return far;
 }
 
 export function clusterPort(): number {
@@ -79,18 +87,18 @@ const secret = () => randomBytes(18).toString("base64url");
 function initCluster(root: string): ClusterInfo {
   mkdirSync(dataRoot(root), { recursive: true, mode: 0o755 });
   chmodSync(dataRoot(root), 0o755);
-  checkTraversable(dataRoot(root));
+  const dirs = serverDirs(root);
   const info: ClusterInfo = { root, port: clusterPort(), superPassword: secret(), ownerPassword: secret(), appPassword: secret() };
-  rmSync(pgData(root), { recursive: true, force: true });
-  ownForServer(pgData(root), 0o700);
-  ownForServer(pgRun(root), 0o755);
-  const pwfile = path.join(pgRun(root), "initdb-pw");
+  rmSync(dirs.data, { recursive: true, force: true });
+  ownForServer(dirs.data, 0o700);
+  ownForServer(dirs.run, 0o755);
+  const pwfile = path.join(dirs.run, "initdb-pw");
   writeFileSync(pwfile, info.superPassword + "\n", { mode: 0o600 });
   const u = pgUser();
   if (u) chownSync(pwfile, u.uid, u.gid);
   try {
     pgExec("initdb", [
-      "-D", pgData(root), "-U", SUPERUSER, `--pwfile=${pwfile}`, "--auth=scram-sha-256",
+      "-D", dirs.data, "-U", SUPERUSER, `--pwfile=${pwfile}`, "--auth=scram-sha-256",
       "--encoding=UTF8", "--locale=C.UTF-8", "--no-instructions",
     ]);
   } finally {
@@ -102,7 +110,7 @@ function initCluster(root: string): ClusterInfo {
 
 function isRunning(root: string): boolean {
   try {
-    pgExec("pg_ctl", ["status", "-D", pgData(root)]);
+    pgExec("pg_ctl", ["status", "-D", serverDirs(root).data]);
     return true;
   } catch {
     return false;
@@ -148,19 +156,21 @@ async function ensureRoles(info: ClusterInfo) {
 
 /** Ensures the cluster exists and runs; returns how to reach it and whether this call started it. */
 export async function ensureCluster(root = projectRoot): Promise<ClusterInfo & { startedNow: boolean }> {
-  let info = existsSync(path.join(pgData(root), "PG_VERSION")) ? readCredentials(root) : null;
+  const dirs = serverDirs(root);
+  let info = existsSync(path.join(dirs.data, "PG_VERSION")) ? readCredentials(root) : null;
   if (!info) info = initCluster(root);
   let startedNow = false;
   if (!isRunning(root)) {
-    ownForServer(pgRun(root), 0o755);
+    ownForServer(dirs.run, 0o755);
+    const log = path.join(dirs.run, "server.log");
     try {
       pgExec("pg_ctl", [
-        "start", "-w", "-t", "60", "-D", pgData(root), "-l", path.join(pgRun(root), "server.log"),
-        "-o", `-p ${info.port} -c listen_addresses=127.0.0.1 -k ${pgRun(root)} -c max_connections=200`,
+        "start", "-w", "-t", "60", "-D", dirs.data, "-l", log,
+        "-o", `-p ${info.port} -c listen_addresses=127.0.0.1 -k ${dirs.run} -c max_connections=200`,
       ]);
     } catch (e) {
-      const log = existsSync(path.join(pgRun(root), "server.log")) ? readFileSync(path.join(pgRun(root), "server.log"), "utf8").slice(-1500) : "";
-      throw new Error(`PostgreSQL did not start on 127.0.0.1:${info.port} (is the port taken? set PGPORT)\n${log}\n${String(e)}`);
+      const tail = existsSync(log) ? readFileSync(log, "utf8").slice(-1500) : "";
+      throw new Error(`PostgreSQL did not start on 127.0.0.1:${info.port} (is the port taken? set PGPORT)\n${tail}\n${String(e)}`);
     }
     startedNow = true;
   }
@@ -169,7 +179,7 @@ export async function ensureCluster(root = projectRoot): Promise<ClusterInfo & {
 }
 
 export function stopCluster(root = projectRoot) {
-  if (isRunning(root)) pgExec("pg_ctl", ["stop", "-w", "-m", "fast", "-D", pgData(root)]);
+  if (isRunning(root)) pgExec("pg_ctl", ["stop", "-w", "-m", "fast", "-D", serverDirs(root).data]);
 }
 
 /** Reads the credentials of a cluster that should already run; fails with the command that starts it. */
