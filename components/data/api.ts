@@ -42,10 +42,14 @@ export async function api<T>(path: string, request: ApiRequest = {}): Promise<T>
     },
     body: request.body === undefined ? undefined : JSON.stringify(request.body),
   });
-  if (response.status === 204 || response.status === 202) {
+  if (response.status === 204) {
     return undefined as T;
   }
   const text = await response.text();
+  // 202 may carry a body (a queued job) or none (a password reset request).
+  if (response.ok && text.length === 0) {
+    return undefined as T;
+  }
   const parsed: unknown = text.length > 0 ? safeJson(text) : {};
   if (!response.ok) {
     const body = typeof parsed === "object" && parsed !== null ? (parsed as Record<string, unknown>) : {};
