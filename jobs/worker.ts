@@ -6,6 +6,8 @@ import { purgeExpired } from "@/lib/auth/cleanup";
 import { systemClock } from "@/lib/auth/clock";
 import { env } from "@/lib/env";
 import { bossOptions, MAINTENANCE_QUEUE, QUEUES } from "@/jobs/queues";
+import { workAnalysisQueues } from "@/jobs/handlers/register";
+import { startFollowUp } from "@/jobs/follow-up";
 
 const STOP_TIMEOUT_MS = 30_000;
 // Hourly at minute 17, away from the top of the hour when other cron jobs pile up.
@@ -26,6 +28,9 @@ await boss.work(MAINTENANCE_QUEUE, async ([job]) => {
   const purged = await purgeExpired(db(), systemClock);
   log(`maintenance ${job.id}: purged ${JSON.stringify(purged)}`);
 });
+await workAnalysisQueues(boss, log);
+// Signed provenance of succeeded jobs, webhook deliveries of finished ones, the signing-key schedule.
+const stopFollowUp = startFollowUp(log);
 log(`started; queues: ${QUEUES.map((q) => q.name).join(", ")}`);
 
 let stopping = false;
@@ -33,6 +38,7 @@ async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
   log(`${signal}: stopping`);
+  stopFollowUp();
   await boss.stop({ graceful: true, wait: true, timeout: STOP_TIMEOUT_MS });
   await pool().end();
   log("stopped");

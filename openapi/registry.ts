@@ -4,6 +4,7 @@ import { OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from "@asteaso
 import * as S from "@/lib/api/schemas";
 import { PROBLEM_BASE, PROBLEM_TYPES } from "@/lib/api/problem";
 import type { Permission } from "@/lib/auth/permissions";
+import { registerDataOperations } from "@/openapi/data-operations";
 
 type Auth = "public" | "session" | "any" | Permission;
 
@@ -107,6 +108,7 @@ export function buildOpenApiDocument() {
       responses,
     });
   }
+  registerDataOperations(registry, problem);
   return new OpenApiGeneratorV31(registry.definitions).generateDocument({
     openapi: "3.1.0",
     info: { title: "Rillscale API", version: "1.0.0", description: DESCRIPTION },

@@ -1,6 +1,6 @@
 // The stack integration and e2e tests run against: its own database on the project cluster (created per run,
 // dropped after), fresh secrets, the SMTP catcher, a built app under `next start` on a free port, and the worker.
-import { createWriteStream, mkdirSync, readFileSync, rmSync } from "node:fs";
+import { createWriteStream, existsSync, mkdirSync, readFileSync, rmSync } from "node:fs";
 import path from "node:path";
 import type { ChildProcess } from "node:child_process";
 import { connectionUrl, dropDatabase, ensureCluster, projectRoot, startCommandHint, stopCluster, type ClusterInfo } from "@/db/cluster";
@@ -20,6 +20,11 @@ export interface TestStackInfo {
   mailDir: string;
   demoKeySecret: string;
   logFile: string;
+  /** For tests that measure or kill them: the `next start` process and the worker. */
+  webPid: number;
+  workerPid: number;
+  /** Pids a test wrote here (one a line: workers it started to replace a killed one) are stopped at teardown. */
+  extraPidsFile: string;
 }
 
 interface Running {
@@ -60,7 +65,12 @@ async function bringUp(): Promise<Running> {
   if (buildIsStale()) buildApp();
   const catcher = await startMailCatcher({ port: 0, dir: mailDir });
   const port = await freePort();
-  const env = appEnv(cluster, secrets, { database, port, smtpPort: catcher.port, mailDir });
+  const env = {
+    ...appEnv(cluster, secrets, { database, port, smtpPort: catcher.port, mailDir }),
+    // objects and staged uploads of this run only, so "nothing stored" can be checked and teardown removes them
+    RILLSCALE_STORAGE_ROOT: path.join(runDir, "objects"),
+    RILLSCALE_UPLOAD_TMP: path.join(runDir, "uploads"),
+  };
   const web = spawnServer(env, port, out);
   const worker = spawnWorker(env, out);
   const url = `http://127.0.0.1:${port}`;
@@ -73,6 +83,7 @@ async function bringUp(): Promise<Running> {
   }
   const info: TestStackInfo = {
     url, database, env: { ...env, NODE_ENV: "test" }, mailDir, demoKeySecret: seeded.apiKeySecret, logFile,
+    webPid: web.pid!, workerPid: worker.pid!, extraPidsFile: path.join(runDir, "extra-pids"),
     ownerUrl: connectionUrl(cluster, "owner", database), superUrl: connectionUrl(cluster, "super", database),
   };
   return { info, cluster, web, worker, catcher, users: 0 };
@@ -86,6 +97,17 @@ export async function acquireTestStack(): Promise<TestStackInfo> {
   return running.info;
 }
 
+function stopExtraPids(file: string) {
+  if (!existsSync(file)) return;
+  for (const pid of readFileSync(file, "utf8").split("\n").filter(Boolean).map(Number)) {
+    try {
+      process.kill(pid, "SIGKILL");
+    } catch {
+      // already gone
+    }
+  }
+}
+
 export async function releaseTestStack(): Promise<void> {
   const pending = holder.__rillscaleTestStack;
   if (!pending) return;
@@ -93,6 +115,7 @@ export async function releaseTestStack(): Promise<void> {
   if (--running.users > 0) return;
   holder.__rillscaleTestStack = undefined;
   await Promise.all([stopChild(running.web), stopChild(running.worker)]);
+  stopExtraPids(running.info.extraPidsFile);
   await running.catcher.close();
   await dropDatabase(running.cluster, running.info.database);
   rmSync(path.dirname(running.info.mailDir), { recursive: true, force: true });
