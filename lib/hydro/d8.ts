@@ -62,6 +62,8 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
   const dir = new Uint8Array(w * h);
   const step = new Float64Array(8);
   const inv = new Float64Array(8);
+  // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
+  const noFlow = NO_FLOW;
 
   for (let y = 0; y < h; y++) {
     if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
@@ -82,7 +84,7 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
     for (let x = 1; x < w - 1; x++) {
       const ne = z[north + x + 1], ce = z[row + x + 1], se = z[south + x + 1];
       if (c === c) {
-        let best = 0, code = NO_FLOW, v: number;
+        let best = 0, code = noFlow, v: number;
         if ((v = (c - ce) * i0) > best) { best = v; code = 0; }
         if ((v = (c - se) * i1) > best) { best = v; code = 1; }
         if ((v = (c - s) * i2) > best) { best = v; code = 2; }
@@ -91,7 +93,7 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
         if ((v = (c - nw) * i5) > best) { best = v; code = 5; }
         if ((v = (c - n) * i6) > best) { best = v; code = 6; }
         if ((v = (c - ne) * i7) > best) { best = v; code = 7; }
-        if (code === NO_FLOW && inc !== undefined) {
+        if (code === noFlow && inc !== undefined) {
           // On a flat: the neighbour of equal elevation down which the increment falls most steeply.
           const i = row + x, ic = inc[i];
           if (ic > 0) {
@@ -107,7 +109,7 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
         }
         dir[row + x] = code;
       } else {
-        dir[row + x] = NO_FLOW;
+        dir[row + x] = noFlow;
       }
       nw = n; n = ne; cw = c; c = ce; sw = s; s = se;
     }

@@ -1,5 +1,5 @@
 // Flow accumulation over D8 directions (O'Callaghan & Mark 1984) in one topological pass: cells leave a queue once all their donors have (Kahn 1962, Communications of the ACM 5(11):558–562).
-import { isNodata, type Grid } from "@/lib/raster/grid";
+import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
 import { D8_DX, D8_DY, NO_FLOW } from "@/lib/hydro/neighbours";
 import { ABORT_CHECK_CELLS, ABORT_CHECK_ROWS } from "@/lib/hydro/cancellation";
@@ -55,6 +55,8 @@ export function flowAccumulation(
   // On a projected grid every cell has one area: accumulate counts only and multiply once at the end
   // (one rounding instead of one per addition, and half the memory traffic in the walk).
   const uniformArea = geometry.area.every((a) => a === geometry.area[0]);
+  // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
+  const noFlow = NO_FLOW, abortMask = ABORT_CHECK_CELLS - 1;
   let validCells = 0;
   let outlets = 0;
   for (let y = 0; y < h; y++) {
@@ -62,12 +64,13 @@ export function flowAccumulation(
     const cellArea = geometry.area[y];
     const interiorRow = y > 0 && y < h - 1;
     for (let x = 0, i = y * w; x < w; x++, i++) {
-      if (isNodata(z[i])) continue;
+      const zi = z[i];
+      if (zi !== zi) continue; // nodata: the NaN rule of isNodata, inline in this loop
       validCells++;
       cells[i] = 1;
       if (!uniformArea) areaM2[i] = cellArea;
       const d = dir[i];
-      if (d === NO_FLOW) {
+      if (d === noFlow) {
         outlets++;
         continue;
       }
@@ -78,8 +81,8 @@ export function flowAccumulation(
           throw new RangeError(`cell (${x}, ${y}) drains off the grid (direction ${d})`);
         }
       }
-      const t = i + offsets[d];
-      if (isNodata(z[t])) throw new RangeError(`cell (${x}, ${y}) drains into nodata (direction ${d})`);
+      const t = i + offsets[d], zt = z[t];
+      if (zt !== zt) throw new RangeError(`cell (${x}, ${y}) drains into nodata (direction ${d})`);
       donors[t]++;
     }
   }
@@ -90,14 +93,14 @@ export function flowAccumulation(
   const order = new Int32Array(validCells);
   let tail = 0;
   for (let s = 0; s < n; s++) {
-    if ((s & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
+    if ((s & abortMask) === 0) signal?.throwIfAborted();
     if (donors[s] !== 0 || cells[s] === 0) continue; // waiting for donors, passed already, or nodata
     let c = s;
     for (;;) {
       order[tail++] = c;
       donors[c] = DONE;
       const d = dir[c];
-      if (d === NO_FLOW) break;
+      if (d === noFlow) break;
       const t = c + offsets[d];
       cells[t] += cells[c];
       if (!uniformArea) areaM2[t] += areaM2[c];

@@ -249,8 +249,10 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   let plainQueueCells = 0;
   let slopeTracedCells = 0;
   let processed = 0;
+  // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
+  const abortMask = ABORT_CHECK_CELLS - 1;
   for (;;) {
-    if ((++processed & (ABORT_CHECK_CELLS - 1)) === 0) signal?.throwIfAborted();
+    if ((++processed & abortMask) === 0) signal?.throwIfAborted();
     // Every closed cell not yet expanded bounds the flooded region. A slope cell (no open neighbour
     // below its level) raises nothing, so it is expanded at once; the others wait for their turn.
     if (slope.length > 0) {
