@@ -70,8 +70,8 @@ function linearAxis(values: number[]): Axis {
 function formatTick(v: number): string {
   if (v === 0) return "0";
   const a = Math.abs(v);
-  if (a >= 1e4 || a < 1e-2) return v.toExponential(0).replace("e+", "e");
-  return Number(v.toPrecision(2)).toString();
+  if (a >= 1e6 || a < 1e-2) return v.toExponential(0).replace("e+", "e");
+  return Number(v.toPrecision(2)).toLocaleString("en");
 }
 
 export function ScalingPlot({ title, points, xLabel, yLabel, xAxis = "log", line, note }: ScalingPlotProps) {

@@ -9,9 +9,11 @@ export interface NavItem {
   devMailOnly?: boolean;
 }
 
-// Only pages that exist are listed; datasets and jobs join here when their pages land.
+// Only pages that exist are listed.
 export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/", label: "Overview" },
+  { href: "/datasets", label: "Datasets", permission: "jobs:read" },
+  { href: "/jobs", label: "Jobs", permission: "jobs:read" },
   { href: "/keys", label: "API keys", permission: "keys:manage" },
   { href: "/members", label: "Members", permission: "members:manage" },
   { href: "/audit", label: "Audit log", permission: "audit:read" },

@@ -1,0 +1,192 @@
+// The product's main path in a real browser against the started server, worker and test database: an analyst
+// uploads a DEM on the datasets page, starts a drainage analysis, watches it progress to done in the jobs table
+// without reloading, opens the result and downloads an artifact; both are checked against the API itself.
+import { existsSync, mkdirSync, readFileSync } from "node:fs";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { formatNumber } from "@/components/jobs/numbers";
+
+const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
+const SCREENSHOTS = path.join(ROOT, ".data", "screenshots");
+// 403 × 344 Int16 DEM, 3″ cells, EPSG:4326 (tests/fixtures/README.md).
+const DEM = path.join(ROOT, "tests/fixtures/cache/debian/jacksboro.tif");
+// Launch arguments from the platform contract: Debian's Chromium, nothing downloaded, no background traffic.
+const CHROMIUM_ARGS = [
+  "--no-sandbox",
+  "--disable-gpu",
+  "--disable-quic",
+  "--no-first-run",
+  "--disable-background-networking",
+  "--disable-component-update",
+  "--disable-sync",
+];
+const DEMO_PASSWORD = "rillscale-demo";
+const ANALYST = "analyst@tallow-creek.example";
+const AUDITOR = "auditor@tallow-creek.example";
+/** A drainage job on this DEM takes a few seconds; the wait allows for a busy machine. */
+const JOB_DEADLINE_MS = 120_000;
+
+function baseUrl(): string {
+  const url = process.env.RILLSCALE_TEST_URL;
+  if (url === undefined) throw new Error("RILLSCALE_TEST_URL is not set: run through `npx vitest run --project e2e`");
+  return url.replace(/\/$/, "");
+}
+
+let browser: Browser;
+
+async function signedInPage(email: string): Promise<{ context: BrowserContext; page: Page }> {
+  const context = await browser.newContext({ viewport: { width: 1360, height: 900 }, acceptDownloads: true });
+  const page = await context.newPage();
+  await page.goto(`${baseUrl()}/sign-in`);
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(DEMO_PASSWORD);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.getByRole("navigation", { name: "Console" }).waitFor();
+  return { context, page };
+}
+
+beforeAll(async () => {
+  if (!existsSync(DEM)) throw new Error(`${DEM} is missing: run \`bash tests/fixtures/fetch.sh\``);
+  mkdirSync(SCREENSHOTS, { recursive: true });
+  browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: CHROMIUM_ARGS });
+});
+
+afterAll(async () => {
+  await browser?.close();
+});
+
+describe("console: upload a DEM, run a drainage analysis, read and download its result", () => {
+  let analyst: { context: BrowserContext; page: Page };
+  let datasetId = "";
+  let jobId = "";
+
+  beforeAll(async () => {
+    analyst = await signedInPage(ANALYST);
+  });
+
+  afterAll(async () => {
+    await analyst?.context.close();
+  });
+
+  test("the analyst uploads the DEM on the datasets page and its row shows the metadata the API reports", async () => {
+    const { page } = analyst;
+    await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
+    const form = page.getByRole("form", { name: "Upload a dataset" });
+    await form.getByLabel("File").setInputFiles(DEM);
+    await form.getByRole("button", { name: "Upload" }).click();
+    await form.getByText("Uploaded “jacksboro.tif”").waitFor();
+
+    const list = await page.request.get(`${baseUrl()}/api/v1/datasets`);
+    expect(list.status()).toBe(200);
+    const items = ((await list.json()) as { items: { id: string; name: string; sizeBytes: number; metadata: { width: number; height: number } }[] }).items;
+    const dataset = items.find((d) => d.name === "jacksboro.tif");
+    expect(dataset).toBeDefined();
+    datasetId = dataset!.id;
+    // Derived: the stored size is the file's, and the grid is the fixture's 403 × 344 (tests/fixtures/README.md).
+    expect(dataset!.sizeBytes).toBe(readFileSync(DEM).length);
+    expect([dataset!.metadata.width, dataset!.metadata.height]).toEqual([403, 344]);
+    const row = page.getByRole("table", { name: "Datasets" }).getByRole("row", { name: /jacksboro\.tif/ });
+    await expect.poll(async () => (await row.textContent()) ?? "").toContain("403 × 344 cells");
+    expect(await row.textContent()).toContain("EPSG:4326");
+  });
+
+  test("a drainage job started from the jobs page progresses to succeeded in the table without a reload", async () => {
+    const { page } = analyst;
+    await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Jobs" }).click();
+    await page.getByRole("button", { name: "New analysis" }).click();
+    const form = page.getByRole("form", { name: "New analysis" });
+    await form.getByLabel("Kind").selectOption("drainage");
+    await form.getByLabel("Dataset").selectOption(datasetId);
+    // The parameters start at the pipeline's defaults (read on the server from its schema).
+    expect(JSON.parse(await form.getByLabel("channelThreshold").inputValue())).toEqual({ method: "area", km2: 1 });
+
+    let navigations = 0;
+    page.on("framenavigated", (frame) => {
+      if (frame === page.mainFrame()) navigations++;
+    });
+    await form.getByRole("button", { name: "Start analysis" }).click();
+    const opened = page.getByRole("link", { name: "Open the job" });
+    jobId = (await opened.getAttribute("data-job-id")) ?? "";
+    expect(jobId).toMatch(/^[0-9a-f-]{36}$/);
+
+    const status = page.locator(`tr[data-job-id="${jobId}"] [data-cell="status"]`);
+    const seen: string[] = [];
+    const deadline = Date.now() + JOB_DEADLINE_MS;
+    for (;;) {
+      const text = ((await status.textContent({ timeout: 10_000 })) ?? "").trim();
+      if (seen.at(-1) !== text) seen.push(text);
+      if (/succeeded|failed|cancelled/.test(text) || Date.now() > deadline) break;
+      await page.waitForTimeout(100);
+    }
+    expect(seen.at(-1)).toBe("succeeded");
+    // The table showed the job before it was done, and changed by itself: no navigation happened.
+    expect(seen.some((s) => s.startsWith("queued") || s.startsWith("running"))).toBe(true);
+    expect(navigations).toBe(0);
+    const progress = page.getByRole("progressbar", { name: `Progress of job ${jobId.slice(0, 8)}` });
+    expect(await progress.getAttribute("aria-valuenow")).toBe("100");
+  });
+
+  test("the job page shows the R_B that /result reports, and a download has the bytes of /artifacts/{name}", async () => {
+    const { page } = analyst;
+    await page.getByRole("link", { name: `Drainage job ${jobId.slice(0, 8)}` }).click();
+    await page.getByRole("table", { name: "Horton ratios" }).waitFor();
+
+    const result = await page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/result`);
+    expect(result.status()).toBe(200);
+    const summary = ((await result.json()) as { summary: { horton: { bifurcationRatio: { value: number } | null; table: unknown[] } } }).summary;
+    expect(summary.horton.bifurcationRatio).not.toBeNull();
+    const shown = (await page.locator('[data-ratio="bifurcation"]').textContent())?.trim();
+    expect(shown).toBe(formatNumber(summary.horton.bifurcationRatio!.value, 4));
+    // One table row per Strahler order in the summary.
+    expect(await page.getByRole("table", { name: "Per-order table" }).locator("tbody tr").count()).toBe(summary.horton.table.length);
+
+    const [download] = await Promise.all([
+      page.waitForEvent("download"),
+      page.getByRole("link", { name: "Download streams.geojson" }).click(),
+    ]);
+    expect(download.suggestedFilename()).toBe("streams.geojson");
+    const downloaded = readFileSync(await download.path());
+    const direct = await page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/artifacts/streams.geojson`);
+    expect(direct.status()).toBe(200);
+    expect(Buffer.compare(downloaded, await direct.body())).toBe(0);
+    expect((JSON.parse(downloaded.toString("utf8")) as { type: string }).type).toBe("FeatureCollection");
+
+    await page.screenshot({ path: path.join(SCREENSHOTS, "job-drainage.png"), fullPage: true });
+  });
+
+  test("deleting the dataset asks first, then removes its row; the finished job keeps its result", async () => {
+    const { page } = analyst;
+    await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
+    await page.getByRole("button", { name: "Delete jacksboro.tif" }).click();
+    const confirm = page.getByRole("dialog", { name: "Delete “jacksboro.tif”?" });
+    await confirm.getByRole("button", { name: "Delete dataset" }).click();
+    await confirm.waitFor({ state: "hidden" });
+    await page.getByRole("table", { name: "Datasets" }).getByRole("row", { name: /jacksboro\.tif/ }).waitFor({ state: "detached" });
+    expect((await page.request.get(`${baseUrl()}/api/v1/datasets/${datasetId}`)).status()).toBe(404);
+    expect((await page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/result`)).status()).toBe(200);
+  });
+});
+
+describe("console: the auditor reads jobs but cannot upload or start them", () => {
+  let auditor: { context: BrowserContext; page: Page };
+
+  beforeAll(async () => {
+    auditor = await signedInPage(AUDITOR);
+  });
+
+  afterAll(async () => {
+    await auditor?.context.close();
+  });
+
+  test("the datasets page has no upload form and the jobs page no new-analysis button", async () => {
+    const { page } = auditor;
+    await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
+    await page.getByText("can read datasets but not upload or delete them").waitFor();
+    expect(await page.getByRole("form", { name: "Upload a dataset" }).count()).toBe(0);
+    await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Jobs" }).click();
+    await page.getByRole("table", { name: "Jobs" }).waitFor();
+    expect(await page.getByRole("button", { name: "New analysis" }).count()).toBe(0);
+  });
+});
