@@ -212,6 +212,22 @@ class Client:
             f.write(self._bytes("/api/v1/jobs/%s/provenance.jws" % quote(job_id)))
         return {"document": doc_path, "signature": jws_path}
 
+    def verify_provenance(self, document_path: str, signature_path: str, files: Iterable[str] = ()) -> Dict[str, Any]:
+        """Asks the server (POST /api/v1/provenance/verify) whether the document's signature holds against the
+        published keys and whether each file is an input or artifact it names; returns the verdict dict."""
+        with open(document_path, "rb") as f:
+            document = f.read().decode("utf-8")
+        with open(signature_path, "r", encoding="ascii") as f:
+            signature = f.read().strip()
+        hashes = []
+        for path in files:
+            digest = hashlib.sha256()
+            with open(path, "rb") as f:
+                for chunk in iter(lambda: f.read(CHUNK), b""):
+                    digest.update(chunk)
+            hashes.append({"name": os.path.basename(path), "sha256": digest.hexdigest()})
+        return self._json("POST", "/api/v1/provenance/verify", {"document": document, "signature": signature, "files": hashes})
+
 
 # -- tables -------------------------------------------------------------------------------------------------
 ORDER_COLUMNS = [("order", "order"), ("streamCount", "stream_count"), ("meanLengthM", "mean_length_m"),

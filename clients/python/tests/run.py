@@ -8,12 +8,14 @@ import json
 import os
 import subprocess
 import sys
+import threading
 import unittest
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.abspath(os.path.join(HERE, "..", "..", ".."))
 sys.path.insert(0, os.path.join(HERE, ".."))
 sys.path.insert(0, HERE)
+MARK = "RILLSCALE_TEST_STACK"
 
 
 class Tally(unittest.TextTestResult):
@@ -30,13 +32,21 @@ def main() -> int:
     if not os.environ.get("RILLSCALE_TEST_URL") or not os.environ.get("RILLSCALE_TEST_KEY"):
         stack = subprocess.Popen(["npx", "tsx", "--conditions=react-server", os.path.join(HERE, "serve_stack.ts")],
                                  cwd=ROOT, stdin=subprocess.PIPE, stdout=subprocess.PIPE, text=True)
-        line = stack.stdout.readline()
-        if not line:
+        info = None
+        for line in stack.stdout:  # build and cluster messages come first; pass them on
+            if line.startswith(MARK + " "):
+                info = json.loads(line[len(MARK) + 1:])
+                break
+            sys.stderr.write(line)
+        if info is None:
             stack.wait()
-            json.dump({"passed": 0, "failed": 1}, open(out, "w"))
+            os.makedirs(os.path.dirname(out), exist_ok=True)
+            with open(out, "w") as f:
+                json.dump({"passed": 0, "failed": 1}, f)
             print("python: the test stack did not start", file=sys.stderr)
             return 1
-        info = json.loads(line)
+        # keep draining the stack's output so it never blocks on a full pipe
+        threading.Thread(target=lambda: [sys.stderr.write(l) for l in stack.stdout], daemon=True).start()
         os.environ["RILLSCALE_TEST_URL"] = info["url"]
         os.environ["RILLSCALE_TEST_KEY"] = info["key"]
     try:

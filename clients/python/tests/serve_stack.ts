@@ -1,11 +1,14 @@
 // Brings up the same test stack as the integration suites (fresh database, `next start`, worker) for the
-// Python client's tests: prints one JSON line {url, key} and tears the stack down when stdin closes.
+// Python client's tests: prints one line `RILLSCALE_TEST_STACK {url, key}` and tears the stack down when stdin closes.
 import { acquireTestStack, releaseTestStack } from "@/tests/setup/stack";
+
+const MARK = "RILLSCALE_TEST_STACK";
 
 process.env.RILLSCALE_WEBHOOKS_ALLOW_PRIVATE ??= "1";
 process.env.RILLSCALE_WEBHOOKS_RETRY_BASE_MS ??= "200";
 const info = await acquireTestStack();
-process.stdout.write(JSON.stringify({ url: info.url, key: info.demoKeySecret }) + "\n");
+// The build and cluster scripts also write to stdout: the line for run.py is marked.
+process.stdout.write(`${MARK} ${JSON.stringify({ url: info.url, key: info.demoKeySecret })}\n`);
 let stopping = false;
 const stop = async () => {
   if (stopping) return;
