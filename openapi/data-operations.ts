@@ -87,7 +87,12 @@ export function dataOperations(): DataOperation[] {
 const paramsName = (k: string) => `${k[0].toUpperCase()}${k.slice(1)}Params`;
 
 export function registerDataOperations(registry: OpenAPIRegistry, problem: z.ZodType): void {
-  for (const k of JOB_KINDS) registry.register(paramsName(k), KINDS[k].params);
+  // As JSON Schema (draft 2020-12, which OpenAPI 3.1 uses) straight from zod: the pipelines' schemas are plain zod,
+  // without the .openapi() extension registry.register() would call on them.
+  for (const k of JOB_KINDS) {
+    const { $schema: _dialect, ...schema } = Z.toJSONSchema(KINDS[k].params, { io: "input", unrepresentable: "any" }) as Record<string, unknown>;
+    registry.registerComponent("schemas", paramsName(k), schema as never);
+  }
   for (const op of dataOperations()) {
     const responses: RouteConfig["responses"] = {
       [op.ok.status]: { description: op.ok.description, ...(op.ok.content ? { content: op.ok.content as never } : {}), headers: { ...RATE_HEADERS, ...op.ok.headers } },

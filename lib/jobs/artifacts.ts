@@ -1,6 +1,7 @@
 // Downloads of job artifacts: the media type, Content-Length, a strong ETag (the content's SHA-256, the same on
 // every backend), If-None-Match → 304, and one byte range per request (RFC 9110 §14; several ranges are
-// answered with the whole file, which §14.2 allows).
+// answered with the whole file, which §14.2 allows). Next 16 removes Content-Length from route-handler answers
+// (server/send-response.js) and sends them chunked; the listing's sizeBytes gives the size either way.
 import { Readable } from "node:stream";
 import { ApiError } from "@/lib/api/problem";
 import type { ObjectStore } from "@/lib/storage";

@@ -1,7 +1,7 @@
 // Request and response bodies of the dataset, job and result routes (zod, with OpenAPI metadata): the handlers
 // parse with them and openapi/registry.ts documents them. Job parameters are each kind's pipeline schema.
 import { z } from "@/lib/api/schemas";
-import { JOB_KINDS, KINDS } from "@/lib/jobs/kinds";
+import { JOB_KINDS } from "@/lib/jobs/kinds";
 
 const IsoDate = z.iso.datetime({ offset: true }).openapi({ example: "2026-12-01T12:00:00.000Z" });
 const Uuid = z.uuid();
@@ -110,6 +110,3 @@ export const JobResult = z.object({
   summary: z.record(z.string(), z.unknown()).openapi({ description: "The pipeline's summary: units in the key suffixes (M, M2, Km, Km2, PerKm) or stated beside each estimator, fit evidence (points, range, R², SE, CI)." }),
   timingsS: z.record(z.string(), z.number()).openapi({ description: "Seconds per stage of the run that produced the result." }),
 }).openapi("JobResult");
-
-/** The parameter schemas, named per kind, for the OpenAPI document. */
-export const PARAMS_SCHEMAS = Object.fromEntries(JOB_KINDS.map((k) => [k, KINDS[k].params])) as Record<(typeof JOB_KINDS)[number], z.ZodType>;

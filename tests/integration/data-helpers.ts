@@ -1,7 +1,8 @@
 // Helpers of the dataset, job and result suites: uploads, job polling, generated inputs (a binary-tree stream
 // network as GeoJSON, an fBm DEM as GeoTIFF) and the RSS of the server's process tree from /proc.
+import { spawn } from "node:child_process";
 import { createHash } from "node:crypto";
-import { readFileSync, readdirSync } from "node:fs";
+import { appendFileSync, openSync, readFileSync, readdirSync } from "node:fs";
 import { mkdir } from "node:fs/promises";
 import path from "node:path";
 import { binaryTree } from "@/lib/fractal/synth/binary-tree";
@@ -144,4 +145,17 @@ export async function countRows(sqlText: string, values: unknown[] = []): Promis
   } finally {
     await client.end();
   }
+}
+
+/** A worker started by a test (to replace one it killed). Its output goes to a file, not a pipe, and it is
+ *  detached, so it outlives the test file's process; the stack stops it at teardown (extraPidsFile). */
+export function startReplacementWorker(extraEnv: Record<string, string>): number {
+  const root = path.resolve(import.meta.dirname, "../..");
+  const out = openSync(path.join(path.dirname(stack().extraPidsFile), "replacement-worker.log"), "a");
+  const child = spawn(process.execPath, ["--conditions=react-server", "--import", "tsx", path.join(root, "jobs", "worker.ts")], {
+    cwd: root, env: { ...process.env, ...stack().env, ...extraEnv, NODE_ENV: "production" }, stdio: ["ignore", out, out], detached: true,
+  });
+  child.unref();
+  appendFileSync(stack().extraPidsFile, `${child.pid}\n`);
+  return child.pid!;
 }

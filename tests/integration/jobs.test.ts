@@ -2,7 +2,7 @@
 // files with /result compared to the library-level pipeline on the same file, the result cache, parameter
 // validation, idempotency, listing, cancel, and a worker killed mid-job.
 import { randomUUID } from "node:crypto";
-import { appendFileSync, readFileSync } from "node:fs";
+import { readFileSync } from "node:fs";
 import { mkdtemp } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
@@ -11,10 +11,9 @@ import { runDrainage } from "@/lib/pipelines/drainage";
 import { runLine } from "@/lib/pipelines/line";
 import { runNetwork } from "@/lib/pipelines/network";
 import { runSurface } from "@/lib/pipelines/surface";
-import { spawnWorker } from "@/scripts/stack";
 import { ADMIN, OTHER_ADMIN, api, createKey, signIn, stack } from "@/tests/integration/client";
 import {
-  binaryTreeGeoJson, countRows, fbmDem, finished, fixture, sha256, submit, submitOk, testStore, uploadOk, waitForJob, type JobBody,
+  binaryTreeGeoJson, countRows, fbmDem, finished, fixture, sha256, startReplacementWorker, submit, submitOk, testStore, uploadOk, waitForJob, type JobBody,
 } from "@/tests/integration/data-helpers";
 
 let key = "";
@@ -227,9 +226,7 @@ describe("long jobs", () => {
     const running = await waitForJob(key, job.id, (j) => j.status === "running" && j.stage !== "starting");
     expect(running.attempts).toBe(1);
     process.kill(stack().workerPid, "SIGKILL");
-    const log = path.join(path.dirname(stack().extraPidsFile), "replacement-worker.log");
-    const replacement = spawnWorker({ ...stack().env, RILLSCALE_JOB_STALE_SECONDS: "2" }, (line) => appendFileSync(log, line + "\n"));
-    appendFileSync(stack().extraPidsFile, `${replacement.pid}\n`);
+    startReplacementWorker({ RILLSCALE_JOB_STALE_SECONDS: "2" });
     const done = await waitForJob(key, job.id, finished, 180_000);
     expect(done.status, JSON.stringify(done.error)).toBe("succeeded");
     expect(done.attempts).toBe(2);
