@@ -10,7 +10,7 @@ import { DEFAULT_LIMIT, MAX_LIMIT } from "@/lib/features/items-query";
 const CollectionParams = Z.object({ collectionId: Z.string().openapi({ description: "The id of a succeeded drainage or network job." }) });
 const FeatureParams = CollectionParams.extend({ featureId: Z.string().openapi({ description: "The stream link's id (an integer)." }) });
 const ItemsQuery = Z.object({
-  limit: Z.number().int().min(1).max(MAX_LIMIT).default(DEFAULT_LIMIT).optional().openapi({ description: `Features per page, 1–${MAX_LIMIT}; default ${DEFAULT_LIMIT}.` }),
+  limit: Z.number().int().min(1).max(MAX_LIMIT).default(DEFAULT_LIMIT).optional().openapi({ description: `Features per page, 1–${MAX_LIMIT}; default ${DEFAULT_LIMIT}. Each page counts against the per-key request quota, so GIS clients reading large networks should ask for big pages (GDAL: \`-oo PAGE_SIZE=1000\`).` }),
   bbox: Z.string().optional().openapi({ description: "minLon,minLat,maxLon,maxLat in CRS84 (or 6 numbers with heights); a west edge east of the east edge spans the antimeridian. Links intersecting it are returned." }),
   cursor: Z.string().optional().openapi({ description: "Opaque; copied from a `next` link." }),
   order: Z.number().int().min(1).optional().openapi({ description: "Only links of this Strahler order." }),

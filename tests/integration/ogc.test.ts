@@ -104,6 +104,17 @@ describe("GDAL's OGC API – Features driver reads the stream network of a finis
 });
 
 describe("the feature service over HTTP", () => {
+  it("the landing page links self, service-desc, conformance and data, and /conformance lists core, geojson and oas30 (OGC 17-069r4 §7.2–7.4)", async () => {
+    const landing = await api("/api/v1/ogc", { key });
+    expect(landing.status).toBe(200);
+    const { links: rels } = (await landing.json()) as { links: { rel: string; href: string }[] };
+    expect(Object.fromEntries(rels.map((l) => [l.rel, l.href]))).toEqual({
+      self: ogc(), "service-desc": `${stack().url}/api/v1/openapi.json`, conformance: `${ogc()}/conformance`, data: `${ogc()}/collections`,
+    });
+    const { conformsTo } = (await (await api("/api/v1/ogc/conformance", { key })).json()) as { conformsTo: string[] };
+    for (const c of ["core", "geojson", "oas30"]) expect(conformsTo).toContain(`http://www.opengis.net/spec/ogcapi-features-1/1.0/conf/${c}`);
+  });
+
   it("pages of limit 5 joined in next order give every link once, in feature-id order (OGC 17-069r4 §7.15.6; derived)", async () => {
     const seen: number[] = [];
     let url: string | undefined = `/api/v1/ogc/collections/${jobId}/items?limit=5`;
