@@ -5,6 +5,7 @@ import * as S from "@/lib/api/schemas";
 import { PROBLEM_BASE, PROBLEM_TYPES } from "@/lib/api/problem";
 import type { Permission } from "@/lib/auth/permissions";
 import { registerDataOperations } from "@/openapi/data-operations";
+import { registerOgcOperations } from "@/openapi/ogc-operations";
 
 type Auth = "public" | "session" | "any" | Permission;
 
@@ -109,6 +110,7 @@ export function buildOpenApiDocument() {
     });
   }
   registerDataOperations(registry, problem);
+  registerOgcOperations(registry, problem);
   return new OpenApiGeneratorV31(registry.definitions).generateDocument({
     openapi: "3.1.0",
     info: { title: "Rillscale API", version: "1.0.0", description: DESCRIPTION },
