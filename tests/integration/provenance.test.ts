@@ -12,7 +12,7 @@ import { beforeAll, describe, expect, it } from "vitest";
 import { verifyDetached } from "@/lib/provenance/detached-jws";
 import { filesOfDocument, type ProvDocument } from "@/lib/provenance/prov-json";
 import { checkFiles } from "@/lib/provenance/verify-files";
-import { ADMIN, AUDITOR, api, signIn, stack } from "@/tests/integration/client";
+import { ADMIN, AUDITOR, api, ownerPool, signIn, stack } from "@/tests/integration/client";
 import { sha256 } from "@/tests/integration/data-helpers";
 import { eventually, finishedJob } from "@/tests/integration/provenance-fixture";
 
@@ -135,5 +135,24 @@ describe("GET /api/v1/jobs/{id}/provenance and provenance.jws", () => {
     expect(ok.stdout).toContain("file ok");
     writeFileSync(path.join(dir, "bad.json"), Buffer.concat([Buffer.from(docBytes), Buffer.from(" ")]));
     expect(run(path.join(dir, "bad.json")).status).toBe(1);
+  });
+
+  it("the database holds no private key in plain form: sealed while active, erased once retired (derived)", async () => {
+    const pool = ownerPool();
+    try {
+      const { rows } = await pool.query<{ public_jwk: Record<string, unknown>; sealed_private_jwk: string | null; retired_at: Date | null }>(
+        "SELECT public_jwk, sealed_private_jwk, retired_at FROM signing_keys");
+      expect(rows.length).toBeGreaterThanOrEqual(2);
+      for (const r of rows) {
+        expect(r.public_jwk.d).toBeUndefined();
+        if (r.retired_at) expect(r.sealed_private_jwk).toBeNull();
+        else {
+          expect(r.sealed_private_jwk).toMatch(/^v1\.[\w-]+\.[\w-]+$/);
+          expect(r.sealed_private_jwk).not.toContain('"d"');
+        }
+      }
+    } finally {
+      await pool.end();
+    }
   });
 });

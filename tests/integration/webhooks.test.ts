@@ -5,7 +5,7 @@ import http from "node:http";
 import type { AddressInfo } from "node:net";
 import { Webhook } from "standardwebhooks";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { ADMIN, api, signIn, stack } from "@/tests/integration/client";
+import { ADMIN, api, ownerPool, signIn, stack } from "@/tests/integration/client";
 import { finishedJob } from "@/tests/integration/provenance-fixture";
 
 interface Received { path: string; headers: Record<string, string>; body: string; answered: number }
@@ -125,6 +125,17 @@ describe("webhooks", () => {
     const text = await (await api("/api/v1/webhooks", { cookie: admin })).text() + await (await api(`/api/v1/webhooks/${ok.id}`, { cookie: admin })).text();
     expect(text).not.toContain(ok.secret.slice(6));
     expect(text).not.toContain("whsec_");
+  });
+
+  it("the database holds the secrets only sealed (derived)", async () => {
+    const pool = ownerPool();
+    try {
+      const { rows } = await pool.query<{ sealed_secret: string }>("SELECT sealed_secret FROM webhook_endpoints WHERE id = $1", [flaky.id]);
+      expect(rows[0].sealed_secret).toMatch(/^v1\./);
+      expect(rows[0].sealed_secret).not.toContain(flaky.secret.slice(6, 20));
+    } finally {
+      await pool.end();
+    }
   });
 
   it("an analyst may not manage webhooks (platform permission table)", async () => {
