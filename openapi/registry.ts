@@ -6,6 +6,7 @@ import { PROBLEM_BASE, PROBLEM_TYPES } from "@/lib/api/problem";
 import type { Permission } from "@/lib/auth/permissions";
 import { registerDataOperations } from "@/openapi/data-operations";
 import { registerOgcOperations } from "@/openapi/ogc-operations";
+import { registerProvenanceOperations } from "@/openapi/provenance-operations";
 
 type Auth = "public" | "session" | "any" | Permission;
 
@@ -111,6 +112,7 @@ export function buildOpenApiDocument() {
   }
   registerDataOperations(registry, problem);
   registerOgcOperations(registry, problem);
+  registerProvenanceOperations(registry, problem);
   return new OpenApiGeneratorV31(registry.definitions).generateDocument({
     openapi: "3.1.0",
     info: { title: "Rillscale API", version: "1.0.0", description: DESCRIPTION },
