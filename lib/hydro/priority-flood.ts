@@ -60,6 +60,12 @@ function orderedKey(bits: number): number {
   return bits ^ ((bits >> 31) & 0x7fffffff);
 }
 
+/** The elevation of an ordered key (the inverse of `orderedKey`: the flip is its own inverse). */
+function keyElevation(key: number): number {
+  i32Scratch[0] = key ^ ((key >> 31) & 0x7fffffff);
+  return f32Scratch[0];
+}
+
 /**
  * Priority queue of (elevation, cell) for keys that never fall below the last key taken out, as in
  * Priority-Flood, where the flood level only rises: a radix heap (Ahuja, Mehlhorn, Orlin & Tarjan 1990,
@@ -72,8 +78,9 @@ class RadixQueue {
   private keys: Int32Array[] = [];
   private cells: Int32Array[] = [];
   private counts = new Int32Array(33);
-  /** last key taken out; starts at the lowest key so any first key is accepted */
-  private last = -0x80000000;
+  /** last key taken out, which is the key of the entry `pop` returned; starts at the lowest key so
+   *  any first key is accepted */
+  last = -0x80000000;
   size = 0;
   peak = 0;
 
@@ -249,6 +256,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   let plainQueueCells = 0;
   let slopeTracedCells = 0;
   let processed = 0;
+  let drainLevel = 0;
   // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
   const abortMask = ABORT_CHECK_CELLS - 1;
   for (;;) {
@@ -283,11 +291,19 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
     }
     // Plain-queue cells sit at the current flood level (a few Float32 steps above it with epsilon), so
     // they come before the priority queue, whose keys are never below that level.
-    let c: number;
-    if (pit.tail > 0) c = pit.shift();
-    else if (heap.size > 0) c = heap.pop();
-    else break;
-    const zc = z[c];
+    // The elevation of the cell comes from the queue, not from z: a cell popped from the priority
+    // queue was pushed long before and z[c] is rarely still in cache. Without epsilon every plain-queue
+    // cell sits at the level of the priority-queue cell that started the current drain.
+    let c: number, zc: number;
+    if (pit.tail > 0) {
+      c = pit.shift();
+      zc = epsilon ? z[c] : drainLevel;
+    } else if (heap.size > 0) {
+      c = heap.pop();
+      // key 0 may be a −0 clamped to +0 (see orderedKey): read that one's sign from the grid
+      zc = heap.last === 0 ? z[c] : keyElevation(heap.last);
+      drainLevel = zc;
+    } else break;
     const level = epsilon ? nextUpFloat32(zc) : zc;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
