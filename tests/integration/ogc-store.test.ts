@@ -1,7 +1,7 @@
 // storeNetworkFeatures() against the test database, then read back over HTTP: the network pipeline's property
 // names, one-vertex links, idempotent re-stores, and a bbox across the antimeridian served by PostGIS.
 import { randomUUID } from "node:crypto";
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { jobs, networkFeatures, organisations } from "@/db/schema";
 import { storeNetworkFeatures } from "@/lib/features/store-network-features";
@@ -60,6 +60,15 @@ describe("storeNetworkFeatures()", () => {
     expect(page.features.map((f) => f.id)).toEqual([0, 1]);
     expect((await get("/items?bbox=9,44,11,46&order=2")).features.map((f) => f.id)).toEqual([2]);
     expect((await get("/items?bbox=9,44,11,46&order=1")).numberMatched).toBe(0);
+  });
+
+  it("the bbox predicate the service uses can be answered from the GiST index on geom (PostGIS: ST_Intersects is index-assisted)", async () => {
+    const plan = await db.transaction(async (tx) => {
+      await tx.execute(sql`SET LOCAL enable_seqscan = off`);
+      return tx.execute(sql`EXPLAIN SELECT feature_id FROM network_features WHERE job_id = ${jobId}
+        AND ST_Intersects(geom, ST_MakeEnvelope(9, 44, 11, 46, 4326))`);
+    });
+    expect(plan.rows.map((r) => Object.values(r)[0]).join("\n")).toContain("network_features_geom_index");
   });
 
   it("storeNetworkFeatures() refuses a collection holding a Point and stores nothing of it (common practice)", async () => {
