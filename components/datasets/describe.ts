@@ -54,13 +54,14 @@ export function describeCellSize(metadata: Record<string, unknown>): string {
   return x === y ? `${x} m` : `${x} × ${y} m`;
 }
 
-/** [west, south, east, north] in degrees, 3 decimals (about 100 m), with hemispheres. */
-export function describeBbox(metadata: Record<string, unknown>): string {
+/** [west, south, east, north] in degrees, 3 decimals (about 100 m), with hemispheres: the south-west and
+ *  north-east corners, or null when the metadata has no box. */
+export function describeBbox(metadata: Record<string, unknown>): { southWest: string; northEast: string } | null {
   const b = numbers(metadata.bboxLonLat);
-  if (b === undefined || b.length !== 4) return "—";
+  if (b === undefined || b.length !== 4) return null;
   const lon = (v: number) => `${Math.abs(v).toFixed(3)}°${v < 0 ? "W" : "E"}`;
   const lat = (v: number) => `${Math.abs(v).toFixed(3)}°${v < 0 ? "S" : "N"}`;
-  return `${lon(b[0])} ${lat(b[1])} – ${lon(b[2])} ${lat(b[3])}`;
+  return { southWest: `${lon(b[0])} ${lat(b[1])}`, northEast: `${lon(b[2])} ${lat(b[3])}` };
 }
 
 /** Grid size for rasters, counts for lines. */

@@ -37,28 +37,28 @@ export interface FractalSummary {
   estimators: Record<string, unknown>;
 }
 
-const ESTIMATOR_TITLES: Record<string, string> = {
-  variogram: "Semivariogram (isotropic)",
-  cubeCounting: "Cube counting",
-  powerSpectrum: "Power spectrum",
-  triangularPrism: "Triangular prism",
-  divider: "Divider (ruler length)",
-  boxCounting: "Box counting",
+/** Title and axes of each estimator's plot; the axes name members of its `units` (JSON object order is not
+ *  kept by the store, so it cannot say which unit is the scale). */
+const ESTIMATOR_PLOTS: Record<string, { title: string; x: [string, string]; y: [string, string] }> = {
+  variogram: { title: "Semivariogram (isotropic)", x: ["lag distance", "distance"], y: ["semivariance", "semivariance"] },
+  cubeCounting: { title: "Cube counting", x: ["box side", "boxSide"], y: ["boxes counted", "count"] },
+  powerSpectrum: { title: "Power spectrum", x: ["wavelength", "wavelength"], y: ["power", "power"] },
+  triangularPrism: { title: "Triangular prism", x: ["square side", "side"], y: ["surface / plan area", "areaRatio"] },
+  divider: { title: "Divider (ruler length)", x: ["ruler", "ruler"], y: ["measured length", "length"] },
+  boxCounting: { title: "Box counting", x: ["box side", "side"], y: ["boxes counted", "count"] },
 };
 
-/** The axes from an estimator's own units: its first unit is the scale, its second the measure. */
-function axes(units: Record<string, string> | undefined): { x: string; y: string } {
-  const entries = Object.entries(units ?? {}).filter(([k]) => k !== "dimension");
-  const label = (e: [string, string] | undefined, fallback: string) => (e === undefined ? fallback : `${e[0]} (${e[1]})`);
-  return { x: label(entries[0], "scale"), y: label(entries[1], "measure") };
+function axisLabel([name, unitKey]: [string, string], units: Record<string, string> | undefined): string {
+  const unit = units?.[unitKey];
+  return unit === undefined || unit === "boxes" ? name : `${name} (${unit})`;
 }
 
 function plotsOf(estimators: Record<string, unknown>) {
-  return Object.entries(estimators).flatMap(([key, raw]) => {
-    const block = raw as EstimatorBlock;
-    const fit = block.fit ?? block.isotropic?.fit;
-    if (fit === undefined || !Array.isArray(fit.points)) return [];
-    return [{ key, title: ESTIMATOR_TITLES[key] ?? key, fit, ...axes(block.units) }];
+  return Object.entries(ESTIMATOR_PLOTS).flatMap(([key, spec]) => {
+    const block = estimators[key] as EstimatorBlock | undefined;
+    const fit = block?.fit ?? block?.isotropic?.fit;
+    if (block === undefined || fit === undefined || !Array.isArray(fit.points)) return [];
+    return [{ key, title: spec.title, fit, x: axisLabel(spec.x, block.units), y: axisLabel(spec.y, block.units) }];
   });
 }
 
@@ -115,10 +115,13 @@ export function FractalResult({ summary }: { summary: FractalSummary }) {
                 xLabel={p.x}
                 yLabel={p.y}
                 line={{ slope: p.fit.slope, intercept: p.fit.intercept, xMin: p.fit.range.min, xMax: p.fit.range.max }}
-                note={`slope ${formatNumber(p.fit.slope, 4)} (95 % CI ${formatCi(p.fit.slopeCi, 4)}), R² ${formatNumber(p.fit.rSquared, 4)}, ${p.fit.n} points over ${formatNumber(p.fit.range.min, 4)}–${formatNumber(p.fit.range.max, 4)} ${p.fit.range.unit} (${p.fit.rangeSource}: ${p.fit.rule})`}
+                note={`slope ${formatNumber(p.fit.slope, 4)} (95 % CI ${formatCi(p.fit.slopeCi, 4)}), R² ${formatNumber(p.fit.rSquared, 4)}; ${p.fit.n} points over ${formatNumber(p.fit.range.min, 4)}–${formatNumber(p.fit.range.max, 4)} ${p.fit.range.unit}, range ${p.fit.rangeSource === "automatic" ? "chosen automatically" : p.fit.rangeSource === "user" ? "given by the parameters" : "all points"}`}
               />
             ))}
           </div>
+          {plots[0].fit.rangeSource === "automatic" && (
+            <p className="text-xs text-graphite-muted">How an automatic range is chosen: {plots[0].fit.rule}</p>
+          )}
         </section>
       )}
     </div>

@@ -156,9 +156,38 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     await page.screenshot({ path: path.join(SCREENSHOTS, "job-drainage.png"), fullPage: true });
   });
 
+  test("a surface job's page lists each estimator's D as /result does and draws its log–log fits", async () => {
+    const { page } = analyst;
+    const submitted = await page.request.post(`${baseUrl()}/api/v1/jobs`, {
+      data: { dataset: datasetId, kind: "surface", params: { estimators: ["variogram", "cube-counting", "power-spectrum", "triangular-prism"] } },
+    });
+    expect(submitted.status()).toBe(202);
+    const surfaceId = ((await submitted.json()) as { id: string }).id;
+    await page.goto(`${baseUrl()}/jobs/${surfaceId}`);
+    await page.getByTestId("job-status").getByText("succeeded").waitFor({ timeout: JOB_DEADLINE_MS });
+    await page.getByRole("table", { name: "Dimensions" }).waitFor();
+
+    const result = await page.request.get(`${baseUrl()}/api/v1/jobs/${surfaceId}/result`);
+    const rows = ((await result.json()) as { summary: { dimensions: { estimator: string; D: number }[] } }).summary.dimensions;
+    expect(rows.length).toBeGreaterThan(0);
+    const table = page.getByRole("table", { name: "Dimensions" });
+    for (const r of rows) {
+      const row = table.locator("tbody tr", { has: page.getByRole("cell", { name: r.estimator, exact: true }) });
+      expect((await row.textContent()) ?? "").toContain(formatNumber(r.D, 4));
+    }
+    // One plot per estimator with a fit: variogram, cube counting, power spectrum, triangular prism.
+    expect(await page.getByRole("img", { name: /points, \d+ used by the fit/ }).count()).toBe(4);
+    await page.screenshot({ path: path.join(SCREENSHOTS, "job-surface.png"), fullPage: true });
+    await page.goto(`${baseUrl()}/jobs`);
+    await page.getByRole("table", { name: "Jobs" }).waitFor();
+    await page.screenshot({ path: path.join(SCREENSHOTS, "jobs.png"), fullPage: true });
+  });
+
   test("deleting the dataset asks first, then removes its row; the finished job keeps its result", async () => {
     const { page } = analyst;
     await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
+    await page.getByRole("table", { name: "Datasets" }).waitFor();
+    await page.screenshot({ path: path.join(SCREENSHOTS, "datasets.png"), fullPage: true });
     await page.getByRole("button", { name: "Delete jacksboro.tif" }).click();
     const confirm = page.getByRole("dialog", { name: "Delete “jacksboro.tif”?" });
     await confirm.getByRole("button", { name: "Delete dataset" }).click();

@@ -83,7 +83,7 @@ export function DatasetsPanel() {
               )}
               {items.map((d) => (
                 <tr key={d.id}>
-                  <td className="min-w-[10rem] font-medium">
+                  <td className="min-w-[8rem] font-medium">
                     <span className="break-all">{d.name}</span>
                     <span className="block text-xs font-normal text-graphite-muted">{describeExtent(d.metadata)}</span>
                   </td>
@@ -93,7 +93,9 @@ export function DatasetsPanel() {
                   </td>
                   <td className="whitespace-nowrap">{formatBytes(d.sizeBytes)}</td>
                   <td className="whitespace-nowrap">{describeCellSize(d.metadata)}</td>
-                  <td className="whitespace-nowrap font-mono text-xs">{describeBbox(d.metadata)}</td>
+                  <td className="whitespace-nowrap font-mono text-xs">
+                    <BboxCell metadata={d.metadata} />
+                  </td>
                   <td className="whitespace-nowrap">
                     {formatInstant(d.createdAt, false)}
                     <span className="block text-xs text-graphite-muted">{d.createdBy.label}</span>
@@ -135,6 +137,17 @@ export function DatasetsPanel() {
       )}
       {open?.kind === "details" && <DetailsDialog dataset={open.dataset} onClose={() => setOpen(null)} />}
       {open?.kind === "delete" && <DeleteDialog dataset={open.dataset} onClose={() => setOpen(null)} />}
+    </>
+  );
+}
+
+function BboxCell({ metadata }: { metadata: Record<string, unknown> }) {
+  const box = describeBbox(metadata);
+  if (box === null) return <>—</>;
+  return (
+    <>
+      <span className="block" title="south-west corner">{box.southWest}</span>
+      <span className="block" title="north-east corner">{box.northEast}</span>
     </>
   );
 }
