@@ -195,7 +195,9 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   const signal = options.signal;
   signal?.throwIfAborted();
   const n = w * h;
-  const closed = new Uint8Array(n);
+  // One bit per cell (n/8 bytes: 2 MB on a 4096² grid, which stays in cache where a byte per cell
+  // would not); cell j is bit j & 31 of word j >> 5.
+  const closed = new Int32Array((n + 31) >>> 5);
   const heap = new RadixQueue();
   const bits = new Int32Array(z.buffer, z.byteOffset, n);
   const pit = new CellQueue();
@@ -207,7 +209,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   let seedCells = 0;
   let nodataCells = 0;
   const seedEdge = (i: number) => {
-    closed[i] = 1;
+    closed[i >> 5] |= 1 << (i & 31);
     const zi = z[i];
     if (zi === zi) {
       heap.push(orderedKey(bits[i]), i);
@@ -224,7 +226,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   }
   for (let i = 0; i < n; i++) {
     if (z[i] !== z[i]) {
-      closed[i] = 1;
+      closed[i >> 5] |= 1 << (i & 31);
       nodataCells++;
     }
   }
@@ -239,8 +241,8 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
           const nx = x + D8_DX[k], ny = y + D8_DY[k];
           if (nx < 0 || ny < 0 || nx >= w || ny >= h) continue;
           const j = ny * w + nx;
-          if (closed[j] === 0) {
-            closed[j] = 1;
+          if ((closed[j >> 5] & (1 << (j & 31))) === 0) {
+            closed[j >> 5] |= 1 << (j & 31);
             heap.push(orderedKey(bits[j]), j);
             seedCells++;
           }
@@ -270,7 +272,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
       let below = false;
       for (let k = 0; k < 8; k++) {
         const j = t + offsets[k];
-        if (j >= 0 && j < n && closed[j] === 0 && z[j] < level) {
+        if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0 && z[j] < level) {
           below = true;
           break;
         }
@@ -282,8 +284,8 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
       slopeTracedCells++;
       for (let k = 0; k < 8; k++) {
         const j = t + offsets[k];
-        if (j >= 0 && j < n && closed[j] === 0) {
-          closed[j] = 1;
+        if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0) {
+          closed[j >> 5] |= 1 << (j & 31);
           slope.push(j);
         }
       }
@@ -307,8 +309,8 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
     const level = epsilon ? nextUpFloat32(zc) : zc;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
-      if (j < 0 || j >= n || closed[j] !== 0) continue;
-      closed[j] = 1;
+      if (j < 0 || j >= n || (closed[j >> 5] & (1 << (j & 31))) !== 0) continue;
+      closed[j >> 5] |= 1 << (j & 31);
       const zj = z[j];
       if (zj < level) {
         cellsRaised++;
