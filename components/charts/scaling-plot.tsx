@@ -40,6 +40,8 @@ interface Axis {
   lo: number;
   hi: number;
   ticks: number[];
+  /** significant digits of the tick labels */
+  digits: number;
 }
 
 function logAxis(values: number[]): Axis {
@@ -55,7 +57,10 @@ function logAxis(values: number[]): Axis {
       if (t >= lo && t <= hi) ticks.push(t);
     }
   }
-  return { lo, hi, ticks };
+  if (ticks.length >= 2) return { lo, hi, ticks, digits: 2 };
+  // a narrow span (an area ratio of 1.00–1.05): evenly spaced inner ticks, labelled finely enough to differ
+  const inner = [1, 2, 3, 4].map((k) => lo + ((hi - lo) * k) / 5);
+  return { lo, hi, ticks: inner, digits: 3 };
 }
 
 function linearAxis(values: number[]): Axis {
@@ -64,14 +69,14 @@ function linearAxis(values: number[]): Axis {
   const pad = (hi - lo) * 0.08;
   const ticks: number[] = [];
   for (let t = Math.ceil(lo); t <= Math.floor(hi); t++) ticks.push(t);
-  return { lo: lo - pad, hi: hi + pad, ticks };
+  return { lo: lo - pad, hi: hi + pad, ticks, digits: 2 };
 }
 
-function formatTick(v: number): string {
+function formatTick(v: number, digits: number): string {
   if (v === 0) return "0";
   const a = Math.abs(v);
-  if (a >= 1e6 || a < 1e-2) return v.toExponential(0).replace("e+", "e");
-  return Number(v.toPrecision(2)).toLocaleString("en");
+  if (a >= 1e6 || a < 1e-2) return v.toExponential(digits - 2).replace("e+", "e");
+  return Number(v.toPrecision(digits)).toLocaleString("en");
 }
 
 export function ScalingPlot({ title, points, xLabel, yLabel, xAxis = "log", line, note }: ScalingPlotProps) {
@@ -119,7 +124,7 @@ export function ScalingPlot({ title, points, xLabel, yLabel, xAxis = "log", line
           <g key={`x${t}`}>
             <line x1={xPos(t)} x2={xPos(t)} y1={MARGIN.top} y2={MARGIN.top + PLOT_H} className="stroke-paper-line" />
             <text x={xPos(t)} y={MARGIN.top + PLOT_H + 13} textAnchor="middle" fontSize="9" className="fill-graphite-muted">
-              {formatTick(xAxis === "log" ? 10 ** t : t)}
+              {formatTick(xAxis === "log" ? 10 ** t : t, xs.digits)}
             </text>
           </g>
         ))}
@@ -127,7 +132,7 @@ export function ScalingPlot({ title, points, xLabel, yLabel, xAxis = "log", line
           <g key={`y${t}`}>
             <line x1={MARGIN.left} x2={MARGIN.left + PLOT_W} y1={yPos(t)} y2={yPos(t)} className="stroke-paper-line" />
             <text x={MARGIN.left - 4} y={yPos(t) + 3} textAnchor="end" fontSize="9" className="fill-graphite-muted">
-              {formatTick(10 ** t)}
+              {formatTick(10 ** t, ys.digits)}
             </text>
           </g>
         ))}

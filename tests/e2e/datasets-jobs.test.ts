@@ -183,6 +183,28 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     await page.screenshot({ path: path.join(SCREENSHOTS, "jobs.png"), fullPage: true });
   });
 
+  test("a parameter out of bounds is named at its field, and a failed job's page shows why it failed", async () => {
+    const { page } = analyst;
+    await page.goto(`${baseUrl()}/jobs?dataset=${datasetId}`);
+    const form = page.getByRole("form", { name: "New analysis" });
+    await form.getByLabel("Dataset").selectOption(datasetId);
+    // drainageParamsSchema: confidence lies in (0.5, 1); the API's 422 points at /params/confidence.
+    await form.getByLabel("confidence").fill("2");
+    await form.getByRole("button", { name: "Start analysis" }).click();
+    await expect.poll(() => form.getByLabel("confidence").getAttribute("aria-invalid")).toBe("true");
+    expect(await form.getByLabel("channelThreshold").getAttribute("aria-invalid")).toBe("false");
+
+    // Derived: the DEM covers about 930 km², so no cell drains 100000 km² and the pipeline refuses.
+    await form.getByLabel("confidence").fill("0.95");
+    await form.getByLabel("channelThreshold").fill('{"method": "area", "km2": 100000}');
+    await form.getByRole("button", { name: "Start analysis" }).click();
+    await page.getByRole("link", { name: "Open the job" }).click();
+    const why = page.getByRole("region", { name: "Why the job failed" });
+    await why.waitFor({ timeout: JOB_DEADLINE_MS });
+    expect(await why.textContent()).toContain("lower the channel threshold");
+    await page.screenshot({ path: path.join(SCREENSHOTS, "job-failed.png"), fullPage: true });
+  });
+
   test("deleting the dataset asks first, then removes its row; the finished job keeps its result", async () => {
     const { page } = analyst;
     await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
