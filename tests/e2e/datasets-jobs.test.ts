@@ -205,6 +205,30 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     await page.screenshot({ path: path.join(SCREENSHOTS, "job-failed.png"), fullPage: true });
   });
 
+  test("while a job reads the dataset its delete is refused (409, said in the dialog); the job's cancel button stops it", async () => {
+    const { page } = analyst;
+    // A local dimension map at every cell: minutes of work on this DEM, so the job is still running when cancelled.
+    const submitted = await page.request.post(`${baseUrl()}/api/v1/jobs`, {
+      data: { dataset: datasetId, kind: "surface", params: { estimators: ["local-dimension"], localStepCells: 1 } },
+    });
+    expect(submitted.status()).toBe(202);
+    const slowId = ((await submitted.json()) as { id: string }).id;
+    await page.goto(`${baseUrl()}/datasets`);
+    await page.getByRole("button", { name: "Delete jacksboro.tif" }).click();
+    const confirm = page.getByRole("dialog", { name: "Delete “jacksboro.tif”?" });
+    await confirm.getByRole("button", { name: "Delete dataset" }).click();
+    await confirm.getByRole("alert").getByText("Still in use.").waitFor();
+    await confirm.getByRole("button", { name: "Cancel" }).click();
+
+    await page.goto(`${baseUrl()}/jobs/${slowId}`);
+    await page.getByTestId("job-status").getByText(/^running/).waitFor({ timeout: JOB_DEADLINE_MS });
+    await page.getByRole("button", { name: "Cancel job" }).click();
+    await page.getByTestId("job-status").getByText("cancelled", { exact: true }).waitFor({ timeout: JOB_DEADLINE_MS });
+    expect(await page.getByRole("button", { name: /Cancel job|Cancelling/ }).count()).toBe(0);
+    const job = (await (await page.request.get(`${baseUrl()}/api/v1/jobs/${slowId}`)).json()) as { status: string };
+    expect(job.status).toBe("cancelled");
+  });
+
   test("deleting the dataset asks first, then removes its row; the finished job keeps its result", async () => {
     const { page } = analyst;
     await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
