@@ -80,8 +80,20 @@ const STATUS_TEXT: Record<number, string> = {
   422: "Validation failed.", 429: "Too many attempts; see Retry-After.", 502: "Mail could not be sent.", 503: "The database does not answer.",
 };
 
+/**
+ * zod 4 copies prototype methods onto each schema as it is made, so a schema built before extendZodWithOpenApi ran
+ * (a bundle does not promise module evaluation order) has no `.openapi()`; calling the method through the
+ * prototype makes an extended copy. Registering through this class accepts such schemas.
+ */
+class Registry extends OpenAPIRegistry {
+  override register<T extends S.z.ZodType>(refId: string, schema: T): T {
+    const extended = typeof (schema as { openapi?: unknown }).openapi === "function" ? schema : (S.z.ZodType.prototype.openapi.call(schema, {}) as T);
+    return super.register(refId, extended);
+  }
+}
+
 export function buildOpenApiDocument() {
-  const registry = new OpenAPIRegistry();
+  const registry = new Registry();
   registry.registerComponent("securitySchemes", "apiKey", { type: "http", scheme: "bearer", description: "An API key: rsk_<id>_<secret><check>." });
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "rillscale_session", description: "The console's session cookie (__Host-rillscale_session over HTTPS)." });
   const problem = registry.register("Problem", S.Problem);
