@@ -53,3 +53,8 @@ export async function idempotent(
   await db.update(idempotencyKeys).set({ responseStatus: response.status, responseBody: response.body, responseHeaders: response.headers }).where(where);
   return { response, replayed: false };
 }
+
+/** Drops records past their retention (the worker calls this hourly; a lookup also drops its own expired key). */
+export async function purgeExpiredIdempotencyKeys(db: Db, clock: Clock): Promise<number> {
+  return (await db.delete(idempotencyKeys).where(lt(idempotencyKeys.expiresAt, clock.now())).returning({ key: idempotencyKeys.key })).length;
+}

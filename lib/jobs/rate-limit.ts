@@ -2,7 +2,7 @@
 // session) and per organisation, counted in PostgreSQL so every web process shares the counts. Headers per
 // draft-ietf-httpapi-ratelimit-headers-09: `RateLimit-Policy: "per-key";q=300;w=60, "per-org";q=3000;w=60` and
 // `RateLimit: "per-key";r=<remaining>;t=<seconds to reset>` (the policy nearest its limit).
-import { sql } from "drizzle-orm";
+import { lt, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { rateLimitCounters } from "@/db/schema";
 import { ApiError } from "@/lib/api/problem";
@@ -44,4 +44,10 @@ export async function takeRequest(db: Db, clock: Clock, policies: RatePolicy[]):
     });
   }
   return headers;
+}
+
+/** Counters of windows that have ended count nothing any more (the worker calls this hourly). */
+export async function purgeEndedWindows(db: Db, clock: Clock): Promise<number> {
+  const before = new Date(clock.now().getTime() - 2 * RATE_WINDOW_SECONDS * 1000);
+  return (await db.delete(rateLimitCounters).where(lt(rateLimitCounters.windowStartedAt, before)).returning({ bucket: rateLimitCounters.bucket })).length;
 }

@@ -11,7 +11,10 @@ import { runDrainage } from "@/lib/pipelines/drainage";
 import { runLine } from "@/lib/pipelines/line";
 import { runNetwork } from "@/lib/pipelines/network";
 import { runSurface } from "@/lib/pipelines/surface";
-import { ADMIN, OTHER_ADMIN, api, createKey, signIn, stack } from "@/tests/integration/client";
+import { systemClock } from "@/lib/auth/clock";
+import { purgeExpiredIdempotencyKeys } from "@/lib/jobs/idempotency";
+import { purgeEndedWindows } from "@/lib/jobs/rate-limit";
+import { ADMIN, OTHER_ADMIN, api, appDb, createKey, signIn, stack } from "@/tests/integration/client";
 import {
   binaryTreeGeoJson, countRows, fbmDem, finished, fixture, sha256, startReplacementWorker, submit, submitOk, testStore, uploadOk, waitForJob, type JobBody,
 } from "@/tests/integration/data-helpers";
@@ -181,6 +184,27 @@ describe("Idempotency-Key (draft-ietf-httpapi-idempotency-key-header)", () => {
     await countRows(`WITH i AS (INSERT INTO idempotency_keys (org_id, principal, key, fingerprint, expires_at)
       VALUES ($1, $2, $3, 'x', now() + interval '1 hour') RETURNING 1) SELECT count(*) AS n FROM i`, [me.org.id, `key:${keyId}`, k2]);
     expect((await submit(key, body(), { "idempotency-key": k2 })).status).toBe(409);
+  });
+});
+
+describe("retention of request records", () => {
+  it("records past their retention and counters of ended windows are purged; live ones stay (derived)", async () => {
+    const { pool, db } = appDb();
+    try {
+      const me = (await (await api("/api/v1/me", { key })).json()) as { org: { id: string } };
+      const expired = `old-${randomUUID()}`, live = `live-${randomUUID()}`;
+      await countRows(`WITH i AS (INSERT INTO idempotency_keys (org_id, principal, key, fingerprint, expires_at)
+        VALUES ($1, 'key:x', $2, 'f', now() - interval '1 minute'), ($1, 'key:x', $3, 'f', now() + interval '1 hour') RETURNING 1)
+        SELECT count(*) AS n FROM i`, [me.org.id, expired, live]);
+      await countRows(`WITH i AS (INSERT INTO rate_limit_counters (bucket, window_started_at, count) VALUES ($1, now() - interval '1 hour', 5) RETURNING 1)
+        SELECT count(*) AS n FROM i`, [`key:${expired}`]);
+      expect(await purgeExpiredIdempotencyKeys(db, systemClock)).toBeGreaterThanOrEqual(1);
+      expect(await purgeEndedWindows(db, systemClock)).toBeGreaterThanOrEqual(1);
+      expect(await countRows("SELECT count(*) AS n FROM idempotency_keys WHERE key = ANY($1)", [[expired, live]])).toBe(1);
+      expect(await countRows("SELECT count(*) AS n FROM rate_limit_counters WHERE bucket = $1", [`key:${expired}`])).toBe(0);
+    } finally {
+      await pool.end();
+    }
   });
 });
 
