@@ -35,6 +35,8 @@ const PLOT_W = WIDTH - MARGIN.left - MARGIN.right;
 const PLOT_H = HEIGHT - MARGIN.top - MARGIN.bottom;
 /** Ticks on a log axis spanning less than this many decades also get 2× and 5× marks. */
 const FEW_DECADES = 2;
+/** Labels of a narrow axis get up to this many significant digits, until neighbours differ. */
+const MAX_TICK_DIGITS = 6;
 
 interface Axis {
   lo: number;
@@ -60,7 +62,9 @@ function logAxis(values: number[]): Axis {
   if (ticks.length >= 2) return { lo, hi, ticks, digits: 2 };
   // a narrow span (an area ratio of 1.00–1.05): evenly spaced inner ticks, labelled finely enough to differ
   const inner = [1, 2, 3, 4].map((k) => lo + ((hi - lo) * k) / 5);
-  return { lo, hi, ticks: inner, digits: 3 };
+  let digits = 3;
+  while (digits < MAX_TICK_DIGITS && new Set(inner.map((t) => formatTick(10 ** t, digits))).size < inner.length) digits++;
+  return { lo, hi, ticks: inner, digits };
 }
 
 function linearAxis(values: number[]): Axis {
