@@ -30,6 +30,7 @@ import { tokunaga } from "@/lib/network/tokunaga";
 import { drainageDensity } from "@/lib/network/drainage-density";
 import { upstreamLinks, type StreamNetwork } from "@/lib/network/model";
 import { M2_PER_KM2 } from "@/lib/network/units";
+import { stageClock } from "./stage-clock";
 
 /** decimals of lon/lat in the GeoJSON: 1e-7° is about 1 cm, below any DEM's cell (RFC 7946 §11.2) */
 const LONLAT_DECIMALS = 7;
@@ -218,15 +219,8 @@ function accumulate(directions: Grid<Uint8Array>, z: Grid<Float32Array>, cellGeo
 export async function runDrainage(input: DrainageInput, rawParams: DrainageParams, hooks: DrainageHooks = {}) {
   const params = drainageParamsSchema.parse(rawParams);
   const { signal } = hooks;
-  const timingsS: Partial<Record<Stage, number>> = {};
-  let current: Stage | null = null, started = 0;
-  const stage = (name: Stage) => {
-    signal?.throwIfAborted();
-    const now = performance.now();
-    if (current) timingsS[current] = (now - started) / 1000;
-    current = name; started = now;
-    hooks.onProgress?.(name, STAGES[name]);
-  };
+  const clock = stageClock<Stage>(STAGES, hooks);
+  const { timingsS } = clock, stage = clock.stage;
 
   stage("read");
   const dem = "dem" in input ? input.dem : await readDem(input.demPath, { band: params.band, epsg: params.epsg, zFactor: params.zFactor, signal });
@@ -317,8 +311,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
     await writeGeoTiff(filePath, f.grid, georef, { nodata: f.nodata });
     artifacts.push({ name: f.name, mediaType: "image/tiff; application=geotiff", path: filePath });
   }
-  timingsS.artifacts = (performance.now() - started) / 1000;
-  hooks.onProgress?.("done", 1);
+  clock.done();
 
   const basinArea = (c: number) => acc.areaM2[c] / M2_PER_KM2;
   const summary = {

@@ -10,6 +10,7 @@ import type { LogLogFit } from "@/lib/fractal/loglog-fit";
 import { divider, DEFAULT_RULER_COUNT } from "@/lib/fractal/divider";
 import { boxCountLines } from "@/lib/fractal/box-counting";
 import { checkPolylines, pointDistance, type Polylines } from "@/lib/fractal/polylines";
+import { stageClock } from "./stage-clock";
 
 const ESTIMATORS = ["divider", "box-counting"] as const;
 
@@ -67,17 +68,8 @@ function polylinesFromGeoJson(doc: unknown, epsg: number | undefined): { lines: 
 /** Lines → summary (deterministic) + timings. */
 export async function runLine(input: LineInput, rawParams: LineParams, hooks: LineHooks = {}) {
   const params: Params = lineParamsSchema.parse(rawParams);
-  const { signal } = hooks;
-  const timingsS: Partial<Record<Stage, number>> = {};
-  let current: Stage | null = null, started = 0;
-  const close = (now: number) => { if (current) timingsS[current] = (now - started) / 1000; };
-  const stage = (name: Stage) => {
-    signal?.throwIfAborted();
-    const now = performance.now();
-    close(now);
-    current = name; started = now;
-    hooks.onProgress?.(name, STAGES[name]);
-  };
+  const clock = stageClock<Stage>(STAGES, hooks);
+  const { timingsS } = clock, stage = clock.stage;
   stage("read");
   const { lines, crs } = "geojson" in input ? polylinesFromGeoJson(input.geojson, params.epsg)
     : { lines: input.lines, crs: null };
@@ -115,8 +107,7 @@ export async function runLine(input: LineInput, rawParams: LineParams, hooks: Li
     };
     dimensions.push({ estimator: "box counting", D: c.dimension.value, se: c.dimension.se, ci95: c.dimension.ci, rSquared: c.fit.rSquared, rangeMinM: c.fit.range.min, rangeMaxM: c.fit.range.max, points: c.fit.n });
   }
-  close(performance.now());
-  hooks.onProgress?.("done", 1);
+  clock.done();
   const summary = {
     kind: "line" as const,
     params,

@@ -19,6 +19,7 @@ import { powerSpectrum, DEFAULT_RADIAL_BINS } from "@/lib/fractal/power-spectrum
 import { triangularPrism } from "@/lib/fractal/triangular-prism";
 import { localDimension, DEFAULT_MIN_VALID_FRACTION } from "@/lib/fractal/local-dimension";
 import { profileDimension, sampleTransect } from "@/lib/fractal/profile";
+import { stageClock } from "./stage-clock";
 
 const ESTIMATORS = ["variogram", "cube-counting", "power-spectrum", "triangular-prism", "local-dimension", "profiles"] as const;
 
@@ -103,15 +104,8 @@ function row(estimator: string, d: Derived, fit: LogLogFit) {
 export async function runSurface(input: SurfaceInput, rawParams: SurfaceParams, hooks: SurfaceHooks = {}) {
   const params: Params = surfaceParamsSchema.parse(rawParams);
   const { signal } = hooks;
-  const timingsS: Partial<Record<Stage, number>> = {};
-  let current: Stage | null = null, started = 0;
-  const stage = (name: Stage) => {
-    signal?.throwIfAborted();
-    const now = performance.now();
-    if (current) timingsS[current] = (now - started) / 1000;
-    current = name; started = now;
-    hooks.onProgress?.(name, STAGES[name]);
-  };
+  const clock = stageClock<Stage>(STAGES, hooks);
+  const { timingsS } = clock, stage = clock.stage;
   stage("read");
   const dem: SurfaceDem = "dem" in input ? input.dem
     : await readDem(input.demPath, { band: params.band, epsg: params.epsg, zFactor: params.zFactor, signal });
@@ -205,8 +199,7 @@ export async function runSurface(input: SurfaceInput, rawParams: SurfaceParams, 
     await writeGeoTiff(filePath, localMap.dimension, georef, { nodata: NaN });
     artifacts.push({ name: "local-dimension.tif", mediaType: "image/tiff; application=geotiff", path: filePath });
   }
-  timingsS.artifacts = (performance.now() - started) / 1000;
-  hooks.onProgress?.("done", 1);
+  clock.done();
   let dxMean = 0, dyMean = 0;
   for (let r = 0; r < height; r++) { dxMean += geometry.dx[r] / height; dyMean += geometry.dy[r] / height; }
   const summary = {
