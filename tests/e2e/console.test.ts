@@ -2,35 +2,16 @@
 // life cycle driven through the pages, checked from outside with the key itself, then the auditor's view.
 import { mkdirSync } from "node:fs";
 import path from "node:path";
-import { fileURLToPath } from "node:url";
-import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import { type Browser, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { baseUrl, launchChromium, SCREENSHOTS, signIn } from "./browser";
 
-const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
-const SCREENSHOTS = path.join(ROOT, ".data", "screenshots");
-// Launch arguments from the platform contract: Debian's Chromium, nothing downloaded, no background traffic.
-const CHROMIUM_ARGS = [
-  "--no-sandbox",
-  "--disable-gpu",
-  "--disable-quic",
-  "--no-first-run",
-  "--disable-background-networking",
-  "--disable-component-update",
-  "--disable-sync",
-];
-const DEMO_PASSWORD = "rillscale-demo";
 const ADMIN = "admin@tallow-creek.example";
 const AUDITOR = "auditor@tallow-creek.example";
 const KEY_NAME = `console check ${Date.now().toString(36)}`;
 const KEY_SCOPES = ["jobs:read", "results:read"];
 // The actions the key handlers write (lib/auth/key-admin.ts), each with target `api_key:<id>`.
 const AUDIT_ACTIONS = ["api_key.created", "api_key.rotated", "api_key.revoked"];
-
-function baseUrl(): string {
-  const url = process.env.RILLSCALE_TEST_URL;
-  if (url === undefined) throw new Error("RILLSCALE_TEST_URL is not set: run through `npx vitest run --project e2e`");
-  return url.replace(/\/$/, "");
-}
 
 async function meWithKey(secret: string): Promise<Response> {
   return fetch(`${baseUrl()}/api/v1/me`, { headers: { authorization: `Bearer ${secret}` } });
@@ -44,17 +25,14 @@ async function signedInPage(email: string): Promise<{ context: BrowserContext; p
   const context = await browser.newContext({ viewport: { width: 1360, height: 860 } });
   await context.grantPermissions(["clipboard-read", "clipboard-write"], { origin: baseUrl() });
   const page = await context.newPage();
-  await page.goto(`${baseUrl()}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
+  await signIn(page, email);
   await page.getByRole("navigation", { name: "Console" }).waitFor();
   return { context, page };
 }
 
 beforeAll(async () => {
   mkdirSync(SCREENSHOTS, { recursive: true });
-  browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: CHROMIUM_ARGS });
+  browser = await launchChromium();
 });
 
 afterAll(async () => {

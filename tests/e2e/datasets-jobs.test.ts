@@ -3,46 +3,24 @@
 // without reloading, opens the result and downloads an artifact; both are checked against the API itself.
 import { existsSync, mkdirSync, readFileSync } from "node:fs";
 import path from "node:path";
-import { fileURLToPath } from "node:url";
-import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import { type Browser, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { formatNumber } from "@/components/jobs/numbers";
+import { baseUrl, launchChromium, ROOT, SCREENSHOTS, signIn } from "./browser";
 
-const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
-const SCREENSHOTS = path.join(ROOT, ".data", "screenshots");
 // 403 × 344 Int16 DEM, 3″ cells, EPSG:4326 (tests/fixtures/README.md).
 const DEM = path.join(ROOT, "tests/fixtures/cache/debian/jacksboro.tif");
-// Launch arguments from the platform contract: Debian's Chromium, nothing downloaded, no background traffic.
-const CHROMIUM_ARGS = [
-  "--no-sandbox",
-  "--disable-gpu",
-  "--disable-quic",
-  "--no-first-run",
-  "--disable-background-networking",
-  "--disable-component-update",
-  "--disable-sync",
-];
-const DEMO_PASSWORD = "rillscale-demo";
 const ANALYST = "analyst@tallow-creek.example";
 const AUDITOR = "auditor@tallow-creek.example";
 /** A drainage job on this DEM takes a few seconds; the wait allows for a busy machine. */
 const JOB_DEADLINE_MS = 120_000;
-
-function baseUrl(): string {
-  const url = process.env.RILLSCALE_TEST_URL;
-  if (url === undefined) throw new Error("RILLSCALE_TEST_URL is not set: run through `npx vitest run --project e2e`");
-  return url.replace(/\/$/, "");
-}
 
 let browser: Browser;
 
 async function signedInPage(email: string): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ viewport: { width: 1360, height: 900 }, acceptDownloads: true });
   const page = await context.newPage();
-  await page.goto(`${baseUrl()}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
+  await signIn(page, email);
   await page.getByRole("navigation", { name: "Console" }).waitFor();
   return { context, page };
 }
@@ -50,7 +28,7 @@ async function signedInPage(email: string): Promise<{ context: BrowserContext; p
 beforeAll(async () => {
   if (!existsSync(DEM)) throw new Error(`${DEM} is missing: run \`bash tests/fixtures/fetch.sh\``);
   mkdirSync(SCREENSHOTS, { recursive: true });
-  browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: CHROMIUM_ARGS });
+  browser = await launchChromium();
 });
 
 afterAll(async () => {

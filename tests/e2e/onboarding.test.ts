@@ -1,31 +1,15 @@
 // Joining and recovering an account in a real browser: an admin invites someone from the members page, the
 // invitation arrives in the dev-mail page, the invitee joins with a name and password, later resets that
 // password from the e-mailed link, and signs out.
-import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import { type Browser, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { baseUrl, DEMO_PASSWORD, launchChromium, signIn } from "./browser";
 
-// Launch arguments from the platform contract: Debian's Chromium, nothing downloaded, no background traffic.
-const CHROMIUM_ARGS = [
-  "--no-sandbox",
-  "--disable-gpu",
-  "--disable-quic",
-  "--no-first-run",
-  "--disable-background-networking",
-  "--disable-component-update",
-  "--disable-sync",
-];
-const DEMO_PASSWORD = "rillscale-demo";
 const ADMIN = "admin@tallow-creek.example";
 const RUN = Date.now().toString(36);
 const INVITEE = `river.ops.${RUN}@tallow-creek.example`;
 const FIRST_PASSWORD = "gravel bar at low water";
 const SECOND_PASSWORD = "riffle pool riffle pool";
-
-function baseUrl(): string {
-  const url = process.env.RILLSCALE_TEST_URL;
-  if (url === undefined) throw new Error("RILLSCALE_TEST_URL is not set: run through `npx vitest run --project e2e`");
-  return url.replace(/\/$/, "");
-}
 
 let browser: Browser;
 let admin: { context: BrowserContext; page: Page };
@@ -33,13 +17,6 @@ let admin: { context: BrowserContext; page: Page };
 async function fresh(): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ viewport: { width: 1280, height: 800 } });
   return { context, page: await context.newPage() };
-}
-
-async function signIn(page: Page, email: string, password: string) {
-  await page.goto(`${baseUrl()}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByRole("button", { name: "Sign in" }).click();
 }
 
 /** The link of the newest caught mail to `to` whose subject matches, read from the admin's dev-mail page. */
@@ -55,7 +32,7 @@ async function linkFromDevMail(to: string, subject: RegExp): Promise<string> {
 }
 
 beforeAll(async () => {
-  browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: CHROMIUM_ARGS });
+  browser = await launchChromium();
   admin = await fresh();
   await signIn(admin.page, ADMIN, DEMO_PASSWORD);
   await admin.page.getByRole("navigation", { name: "Console" }).waitFor();
