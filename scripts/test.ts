@@ -24,6 +24,10 @@ if (existsSync(path.join(root, "tests/fixtures/fetch.sh"))) {
   }
 }
 
+// Type checking: `next build` skips it (a build must not depend on every file at once), so it is a suite here.
+const typecheckStatus = run("npx", ["tsc", "--noEmit", "--pretty", "false"]);
+tallies.typecheck = typecheckStatus === 0 ? { passed: 1, failed: 0 } : { passed: 0, failed: 1 };
+
 // Vitest: all three projects in one invocation; integration and e2e start their own
 // PostgreSQL database, server and worker in their global setup (tests/setup/).
 const vitestJson = path.join(resultsDir, "vitest.json");
