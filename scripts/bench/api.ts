@@ -104,18 +104,7 @@ function makeBigTiff(file: string) {
     "-a_srs", "EPSG:32633", "-a_ullr", "500000", String(5_000_000 + extent), String(500_000 + extent), "5000000", file]);
 }
 
-/** The stack's modules import `server-only`, which throws outside the react-server condition that `npm run bench`
- *  does not set: the bench runs itself again under it (as the worker is started) and passes on its exit code. */
-function underReactServer(argv: string[]): number | null {
-  if (process.execArgv.some((a) => a === "--conditions=react-server")) return null;
-  const r = spawnSync(process.execPath, ["--conditions=react-server", "--import", "tsx", path.join(projectRoot, "scripts", "bench.ts"), "api", ...argv],
-    { cwd: projectRoot, stdio: "inherit" });
-  return r.status ?? 1;
-}
-
 export async function main(argv: string[]): Promise<number> {
-  const rerun = underReactServer(argv);
-  if (rerun !== null) return rerun;
   const { runDrainage } = await import("@/lib/pipelines/drainage");
   const { acquireTestStack, releaseTestStack } = await import("@/tests/setup/stack");
   // The per-key limit (300/min by default) would answer most of the status load 429: lifted for this stack only,
