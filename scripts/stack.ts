@@ -1,5 +1,5 @@
 // The local stack both `npm start` and the test harness bring up: a database on the project cluster, migrated and
-// seeded; secrets; the SMTP catcher; a built app under `next start`; the job worker.
+// seeded; secrets; the SMTP catcher; the built app in our web process (scripts/web-server.ts); the job worker.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { existsSync, mkdirSync, readFileSync, readdirSync, statSync, writeFileSync } from "node:fs";
@@ -127,7 +127,7 @@ function pipeOutput(child: ChildProcess, out: Output, tag: string) {
 }
 
 export function spawnServer(envVars: Record<string, string>, port: number, out: Output, root = projectRoot): ChildProcess {
-  const child = spawn(process.execPath, [nextBin(root), "start", "-H", "127.0.0.1", "-p", String(port)], {
+  const child = spawn(process.execPath, ["--import", "tsx", path.join(root, "scripts", "web-server.ts"), "127.0.0.1", String(port)], {
     cwd: root, env: { ...process.env, ...envVars, NODE_ENV: "production" }, stdio: out === "inherit" ? ["ignore", "inherit", "inherit"] : ["ignore", "pipe", "pipe"],
   });
   pipeOutput(child, out, "web");

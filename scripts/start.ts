@@ -1,5 +1,5 @@
 // npm start — (bootstrap.sh has installed what was missing) the project cluster, the migrated and seeded
-// `rillscale` database, a fresh-enough build, the SMTP catcher, `next start` and the worker, until Ctrl-C.
+// `rillscale` database, a fresh-enough build, the SMTP catcher, the web process (scripts/web-server.ts) and the worker, until Ctrl-C.
 import path from "node:path";
 import { ensureCluster, projectRoot, stopCluster } from "@/db/cluster";
 import { DEMO_ORGS, DEMO_PASSWORD } from "@/db/seed";

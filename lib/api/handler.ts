@@ -129,7 +129,7 @@ export function actingOf(p: Principal, ip: string | null) {
 
 function finish(res: Response, requestId: string, cookie?: string | null): Response {
   res.headers.set("x-request-id", requestId);
-  res.headers.set("cache-control", "no-store");
+  if (!res.headers.has("cache-control")) res.headers.set("cache-control", "no-store");
   if (cookie) res.headers.append("set-cookie", cookie);
   return res;
 }

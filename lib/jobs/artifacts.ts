@@ -1,8 +1,9 @@
 // Downloads of job artifacts: the media type, Content-Length, a strong ETag (the content's SHA-256, the same on
 // every backend), If-None-Match → 304, and one byte range per request (RFC 9110 §14; several ranges are
-// answered with the whole file, which §14.2 allows). Next 16 removes Content-Length from route-handler answers
-// (server/send-response.js) and sends them chunked; the listing's sizeBytes gives the size either way.
+// answered with the whole file, which §14.2 allows). The length goes out as Content-Length through our web process
+// (lib/api/body-length.ts); `no-transform` keeps the bytes exactly those the ETag and the provenance hash name.
 import { Readable } from "node:stream";
+import { BODY_LENGTH_HEADER } from "@/lib/api/body-length";
 import { ApiError } from "@/lib/api/problem";
 import type { ObjectStore } from "@/lib/storage";
 
@@ -41,7 +42,7 @@ export async function artifactResponse(store: ObjectStore, a: StoredArtifact, re
   const etag = `"${a.sha256}"`;
   const headers: Record<string, string> = {
     "content-type": a.mediaType, etag, "accept-ranges": "bytes",
-    "content-disposition": `attachment; filename="${a.name}"`,
+    "content-disposition": `attachment; filename="${a.name}"`, "cache-control": "no-store, no-transform",
   };
   const inm = req.headers.get("if-none-match");
   if (inm && (inm.trim() === "*" || inm.split(",").some((t) => t.trim().replace(/^W\//, "") === etag))) {
@@ -49,12 +50,12 @@ export async function artifactResponse(store: ObjectStore, a: StoredArtifact, re
   }
   const ifRange = req.headers.get("if-range");
   const range = ifRange && ifRange.trim() !== etag ? null : parseRange(req.headers.get("range"), a.size);
-  if (req.method === "HEAD") return new Response(null, { status: 200, headers: { ...headers, "content-length": String(a.size) } });
+  if (req.method === "HEAD") return new Response(null, { status: 200, headers: { ...headers, [BODY_LENGTH_HEADER]: String(a.size) } });
   const read = await store.get(a.key, range ? { range } : {});
   const body = Readable.toWeb(read.body) as ReadableStream<Uint8Array>;
-  if (!range) return new Response(body, { status: 200, headers: { ...headers, "content-length": String(a.size) } });
+  if (!range) return new Response(body, { status: 200, headers: { ...headers, [BODY_LENGTH_HEADER]: String(a.size) } });
   return new Response(body, {
     status: 206,
-    headers: { ...headers, "content-length": String(range.end - range.start + 1), "content-range": `bytes ${range.start}-${range.end}/${a.size}` },
+    headers: { ...headers, [BODY_LENGTH_HEADER]: String(range.end - range.start + 1), "content-range": `bytes ${range.start}-${range.end}/${a.size}` },
   });
 }

@@ -66,16 +66,18 @@ describe("every job kind over the API gives the library pipeline's summary on th
     expect(csv.split("\r\n")[0]).toBe("order,stream_count,mean_length_m,mean_area_km2,mean_slope_m_per_m");
     expect(csv.trim().split("\r\n")).toHaveLength(1 + lib.summary.horton.table.length);
     const streams = lib.artifacts.find((a) => a.name === "streams.geojson")!;
-    const dl = await api(`/api/v1/jobs/${job.id}/artifacts/streams.geojson`, { key });
+    const dl = await api(`/api/v1/jobs/${job.id}/artifacts/streams.geojson`, { key, headers: { "accept-encoding": "gzip" } });
     const served = new Uint8Array(await dl.arrayBuffer());
     expect(dl.headers.get("content-type")).toBe("application/geo+json");
-    // Next 16 drops Content-Length from route-handler answers (server/send-response.js); the size is in the listing
     expect(arts.items.find((a) => a.name === "streams.geojson")!.sizeBytes).toBe(served.length);
+    expect(dl.headers.get("content-length")).toBe(String(served.length)); // RFC 9110 §8.6
+    expect(dl.headers.get("content-encoding")).toBeNull(); // no-transform: the bytes the ETag names, even to gzip clients
     expect(sha256(served)).toBe(sha256(streams.bytes!));
     expect(dl.headers.get("etag")).toBe(`"${sha256(served)}"`);
     const part = await api(`/api/v1/jobs/${job.id}/artifacts/streams.geojson`, { key, headers: { range: "bytes=10-19" } });
     expect(part.status).toBe(206);
     expect(part.headers.get("content-range")).toBe(`bytes 10-19/${served.length}`);
+    expect(part.headers.get("content-length")).toBe("10");
     expect(new Uint8Array(await part.arrayBuffer())).toEqual(served.subarray(10, 20));
     const cached = await api(`/api/v1/jobs/${job.id}/artifacts/streams.geojson`, { key, headers: { "if-none-match": dl.headers.get("etag")! } });
     expect(cached.status).toBe(304);

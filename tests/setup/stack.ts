@@ -1,5 +1,5 @@
 // The stack integration and e2e tests run against: its own database on the project cluster (created per run,
-// dropped after), fresh secrets, the SMTP catcher, a built app under `next start` on a free port, and the worker.
+// dropped after), fresh secrets, the SMTP catcher, the built app in our web process on a free port, and the worker.
 import { createWriteStream, existsSync, mkdirSync, readFileSync, rmSync } from "node:fs";
 import path from "node:path";
 import type { ChildProcess } from "node:child_process";
@@ -20,7 +20,7 @@ export interface TestStackInfo {
   mailDir: string;
   demoKeySecret: string;
   logFile: string;
-  /** For tests that measure or kill them: the `next start` process and the worker. */
+  /** For tests that measure or kill them: the web process and the worker. */
   webPid: number;
   workerPid: number;
   /** Pids a test wrote here (one a line: workers it started to replace a killed one) are stopped at teardown. */
