@@ -15,6 +15,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/datasets", label: "Datasets", permission: "jobs:read" },
   { href: "/jobs", label: "Jobs", permission: "jobs:read" },
   { href: "/keys", label: "API keys", permission: "keys:manage" },
+  { href: "/webhooks", label: "Webhooks", permission: "keys:manage" },
   { href: "/members", label: "Members", permission: "members:manage" },
   { href: "/audit", label: "Audit log", permission: "audit:read" },
   { href: "/dev/mail", label: "Dev mail", permission: "mail:read-dev", devMailOnly: true },

@@ -1,0 +1,79 @@
+import { Fragment, type HTMLAttributes, type ReactNode } from "react";
+import { UtcCaption } from "@/components/ui/utc-caption";
+
+export interface Column<T> {
+  /** React key of the column, and the cell's `data-cell` (tests and styles find a cell by it). */
+  key: string;
+  header: ReactNode;
+  /** A header read by screen readers only (an actions column). */
+  headerHidden?: boolean;
+  className?: string | ((row: T) => string | undefined);
+  cell: (row: T) => ReactNode;
+}
+
+export interface DataTableProps<T> {
+  /** The table's accessible name. */
+  label: string;
+  columns: readonly Column<T>[];
+  rows: readonly T[];
+  rowKey: (row: T) => string;
+  /** What an empty table says, in one full-width row (none for tables that are never empty). */
+  empty?: ReactNode;
+  /** Attributes of a row's <tr> (a muted class, a data-* id). */
+  rowProps?: (row: T) => HTMLAttributes<HTMLTableRowElement> & Partial<Record<`data-${string}`, string>>;
+  /** A full-width row under a row (details opened in place), or null for none. */
+  expansion?: (row: T) => ReactNode | null;
+  /** False for tables without instants; otherwise the caption says the times are UTC. */
+  utcCaption?: boolean;
+  busy?: boolean;
+}
+
+// The console's one table: a card that scrolls sideways, dense rows, a header row, an empty-state row.
+export function DataTable<T>({ label, columns, rows, rowKey, empty, rowProps, expansion, utcCaption = true, busy }: DataTableProps<T>) {
+  return (
+    <div className="card overflow-x-auto">
+      <table className="table-dense" aria-label={label} aria-busy={busy}>
+        {utcCaption && <UtcCaption />}
+        <thead>
+          <tr>
+            {columns.map((c) => (
+              <th key={c.key} scope="col">
+                {c.headerHidden === true ? <span className="sr-only">{c.header}</span> : c.header}
+              </th>
+            ))}
+          </tr>
+        </thead>
+        <tbody>
+          {rows.length === 0 && empty !== undefined && (
+            <tr>
+              <td colSpan={columns.length} className="py-6 text-center text-graphite-muted">
+                {empty}
+              </td>
+            </tr>
+          )}
+          {rows.map((row) => {
+            const below = expansion?.(row) ?? null;
+            return (
+              <Fragment key={rowKey(row)}>
+                <tr {...rowProps?.(row)}>
+                  {columns.map((c) => (
+                    <td key={c.key} data-cell={c.key} className={typeof c.className === "function" ? c.className(row) : c.className}>
+                      {c.cell(row)}
+                    </td>
+                  ))}
+                </tr>
+                {below !== null && (
+                  <tr>
+                    <td colSpan={columns.length} className="bg-paper-sunk">
+                      {below}
+                    </td>
+                  </tr>
+                )}
+              </Fragment>
+            );
+          })}
+        </tbody>
+      </table>
+    </div>
+  );
+}
