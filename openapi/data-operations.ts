@@ -1,18 +1,18 @@
 // The dataset, job and result operations of the OpenAPI document. Kept apart from OPERATIONS (registry.ts)
 // because their bodies are not all JSON: uploads are raw files or multipart, artifacts are files. Each job
 // kind's parameters are registered from the pipeline's own zod schema (descriptions carry units, defaults, bounds).
-import type { OpenAPIRegistry, RouteConfig } from "@asteasolutions/zod-to-openapi";
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import type { z } from "zod";
+import { jsonContent as json, registerOperations, stringHeader, type DocumentedOperation } from "@/openapi/operations";
 import { IDEMPOTENCY_DOC } from "@/lib/jobs/idempotency-key";
 import { JOB_KINDS, KINDS } from "@/lib/jobs/kinds";
 import { RATE_WINDOW_SECONDS } from "@/lib/jobs/config";
 import * as J from "@/lib/jobs/schemas";
 import { z as Z } from "@/lib/api/schemas";
 
-const str = { schema: { type: "string" as const } };
 const RATE_HEADERS = {
-  "RateLimit-Policy": { description: `Quotas per API key (or user) and per organisation, per ${RATE_WINDOW_SECONDS} s window (draft-ietf-httpapi-ratelimit-headers).`, ...str },
-  RateLimit: { description: "Requests left (r) and seconds to the window's end (t) of the policy nearest its quota.", ...str },
+  "RateLimit-Policy": stringHeader(`Quotas per API key (or user) and per organisation, per ${RATE_WINDOW_SECONDS} s window (draft-ietf-httpapi-ratelimit-headers).`),
+  RateLimit: stringHeader("Requests left (r) and seconds to the window's end (t) of the policy nearest its quota."),
 };
 
 const ERROR_TEXT: Record<number, string> = {
@@ -22,24 +22,10 @@ const ERROR_TEXT: Record<number, string> = {
   429: "Too many requests; see Retry-After.",
 };
 
-interface DataOperation {
-  method: RouteConfig["method"];
-  path: string;
-  summary: string;
-  description?: string;
-  permission: string;
-  params?: z.ZodObject;
-  query?: z.ZodObject;
-  body?: RouteConfig["request"] extends infer R ? R extends { body?: infer B } ? B : never : never;
-  ok: { status: number; description: string; content?: Record<string, { schema: unknown }>; headers?: Record<string, { description: string; schema: { type: "string" } }> };
-  errors: number[];
-}
-
 const IdempotencyHeader = Z.object({ "Idempotency-Key": Z.string().optional().openapi({ description: IDEMPOTENCY_DOC }) });
-const json = (schema: z.ZodType) => ({ "application/json": { schema } });
 const AUTH = [401, 403, 429];
 
-export function dataOperations(): DataOperation[] {
+export function dataOperations(): DocumentedOperation[] {
   return [
     {
       method: "post", path: "/api/v1/datasets", summary: "Upload a dataset (DEM or stream lines)", permission: "datasets:write", query: J.DatasetUploadQuery,
@@ -53,7 +39,7 @@ export function dataOperations(): DataOperation[] {
           "multipart/form-data": { schema: { type: "object", properties: { epsg: { type: "integer" }, file: { type: "string", format: "binary" } } } },
         },
       } as never,
-      ok: { status: 201, description: "Accepted (200 when the organisation already had these bytes).", content: json(J.Dataset), headers: { Location: { description: "The dataset.", ...str } } },
+      ok: { status: 201, description: "Accepted (200 when the organisation already had these bytes).", content: json(J.Dataset), headers: { Location: stringHeader("The dataset.") } },
       errors: [...AUTH, 400, 413, 415, 422],
     },
     { method: "get", path: "/api/v1/datasets", summary: "List datasets, newest first", permission: "jobs:read", query: J.DatasetListQuery, ok: { status: 200, description: "A page.", content: json(J.DatasetList) }, errors: [...AUTH, 422] },
@@ -62,8 +48,8 @@ export function dataOperations(): DataOperation[] {
     {
       method: "post", path: "/api/v1/jobs", summary: "Queue an analysis", permission: "jobs:write",
       description: `Kinds: ${JOB_KINDS.map((k) => `\`${k}\` — ${KINDS[k].summary} (reads ${KINDS[k].formats.join(" or ")}; parameters: ${paramsName(k)})`).join("; ")}.\n\nThe same dataset bytes, kind, parameters (after defaults) and software version reuse the earlier result at once (\`cachedFrom\` names the job). An organisation runs a limited number of jobs at a time; the rest wait queued.\n\n${IDEMPOTENCY_DOC}`,
-      body: { required: true, content: json(J.JobCreateBody) } as never,
-      ok: { status: 202, description: "Queued (or already succeeded from the cache).", content: json(J.Job), headers: { Location: { description: "The job.", ...str } } },
+      body: { required: true, content: json(J.JobCreateBody) } as never, headers: IdempotencyHeader,
+      ok: { status: 202, description: "Queued (or already succeeded from the cache).", content: json(J.Job), headers: { Location: stringHeader("The job.") } },
       errors: [...AUTH, 400, 409, 415, 422],
     },
     { method: "get", path: "/api/v1/jobs", summary: "List jobs, newest first", permission: "jobs:read", query: J.JobListQuery, ok: { status: 200, description: "A page.", content: json(J.JobList) }, errors: [...AUTH, 422] },
@@ -77,7 +63,7 @@ export function dataOperations(): DataOperation[] {
       ok: {
         status: 200, description: "The file (206 for a range).",
         content: { "application/octet-stream": { schema: { type: "string", format: "binary" } } },
-        headers: { ETag: { description: "The SHA-256 of the file, quoted.", ...str }, "Content-Length": { description: "Bytes.", ...str }, "Accept-Ranges": { description: "bytes", ...str } },
+        headers: { ETag: stringHeader("The SHA-256 of the file, quoted."), "Content-Length": stringHeader("Bytes."), "Accept-Ranges": stringHeader("bytes") },
       },
       errors: [...AUTH, 404, 409, 416],
     },
@@ -93,26 +79,7 @@ export function registerDataOperations(registry: OpenAPIRegistry, problem: z.Zod
     const { $schema: _dialect, ...schema } = Z.toJSONSchema(KINDS[k].params, { io: "input", unrepresentable: "any" }) as Record<string, unknown>;
     registry.registerComponent("schemas", paramsName(k), schema as never);
   }
-  for (const op of dataOperations()) {
-    const responses: RouteConfig["responses"] = {
-      [op.ok.status]: { description: op.ok.description, ...(op.ok.content ? { content: op.ok.content as never } : {}), headers: { ...RATE_HEADERS, ...op.ok.headers } },
-    };
-    for (const status of op.errors) {
-      responses[status] = {
-        description: ERROR_TEXT[status],
-        content: { "application/problem+json": { schema: problem } },
-        ...(status === 429 ? { headers: { "Retry-After": { description: "Seconds to wait.", ...str }, ...RATE_HEADERS } } : {}),
-      };
-    }
-    registry.registerPath({
-      method: op.method, path: op.path, summary: op.summary, description: op.description,
-      security: [{ session: [] }, { apiKey: [] }], "x-permission": op.permission,
-      request: {
-        ...(op.params ? { params: op.params } : {}), ...(op.query ? { query: op.query } : {}),
-        ...(op.body ? { body: op.body } : {}),
-        ...(op.path === "/api/v1/jobs" && op.method === "post" ? { headers: IdempotencyHeader } : {}),
-      },
-      responses,
-    });
-  }
+  registerOperations(registry, problem, {
+    errorText: ERROR_TEXT, okHeaders: RATE_HEADERS, errorHeaders: { 429: { "Retry-After": stringHeader("Seconds to wait."), ...RATE_HEADERS } },
+  }, dataOperations());
 }

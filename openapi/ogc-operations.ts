@@ -1,8 +1,9 @@
 // The feature service's operations (OGC API – Features Part 1, OGC 17-069r4) in the OpenAPI document. Their
 // bodies are the standard's documents, described here by their members; the `limit` bounds are the ones the
 // handlers enforce (lib/features/items-query.ts), so clients reading this document page within them.
-import type { OpenAPIRegistry, RouteConfig } from "@asteasolutions/zod-to-openapi";
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import type { z } from "zod";
+import { jsonContent as json, registerOperations } from "@/openapi/operations";
 import { z as Z } from "@/lib/api/schemas";
 import { CONFORMANCE_CLASSES, GEOJSON } from "@/lib/features/documents";
 import { DEFAULT_LIMIT, MAX_LIMIT } from "@/lib/features/items-query";
@@ -29,7 +30,6 @@ const feature = {
     properties: { type: "object", description: "link, downstream (link id or null), order (Strahler), magnitude (Shreve), lengthM, dropM, areaM2 (contributing area at the downstream end)." },
   },
 };
-const json = (schema: unknown) => ({ "application/json": { schema } });
 
 interface OgcOperation {
   path: string;
@@ -60,14 +60,8 @@ const ERROR_TEXT: Record<number, string> = {
 };
 
 export function registerOgcOperations(registry: OpenAPIRegistry, problem: z.ZodType): void {
-  for (const op of OPERATIONS) {
-    const responses: RouteConfig["responses"] = { 200: { description: "OK.", content: op.content as never } };
-    for (const status of op.errors) responses[status] = { description: ERROR_TEXT[status], content: { "application/problem+json": { schema: problem } } };
-    registry.registerPath({
-      method: "get", path: op.path, summary: op.summary, tags: ["OGC API – Features"],
-      security: [{ session: [] }, { apiKey: [] }], "x-permission": "results:read",
-      request: { ...(op.params ? { params: op.params } : {}), ...(op.query ? { query: op.query } : {}) },
-      responses,
-    });
-  }
+  registerOperations(registry, problem, { errorText: ERROR_TEXT, tags: ["OGC API – Features"] }, OPERATIONS.map((op) => ({
+    method: "get", path: op.path, summary: op.summary, permission: "results:read", params: op.params, query: op.query,
+    ok: { status: 200, description: "OK.", content: op.content }, errors: op.errors,
+  })));
 }

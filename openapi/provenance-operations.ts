@@ -1,7 +1,8 @@
 // The provenance, STAC, signing-key and webhook operations of the OpenAPI document (their bodies are partly not
 // JSON: the provenance document is served as signed bytes, the signature as application/jose).
-import type { OpenAPIRegistry, RouteConfig } from "@asteasolutions/zod-to-openapi";
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import type { z } from "zod";
+import { jsonContent as json, registerOperations, type DocumentedOperation } from "@/openapi/operations";
 import * as J from "@/lib/jobs/schemas";
 import * as P from "@/lib/provenance/schemas";
 import * as W from "@/lib/webhooks/schemas";
@@ -11,24 +12,11 @@ const ERROR_TEXT: Record<number, string> = {
   409: "Conflicts with the current state.", 415: "Send application/json.", 422: "Validation failed; `errors[]` names the fields.",
 };
 
-interface Op {
-  method: RouteConfig["method"];
-  path: string;
-  summary: string;
-  description?: string;
-  permission: string;
-  params?: z.ZodObject;
-  query?: z.ZodObject;
-  body?: z.ZodType;
-  ok: { status: number; description: string; content?: Record<string, { schema: unknown }> };
-  errors: number[];
-}
-
-const json = (schema: z.ZodType) => ({ "application/json": { schema } });
 const AUTH = [401, 403];
+const jsonBody = (schema: z.ZodType) => ({ required: true, content: json(schema) }) as DocumentedOperation["body"];
 const WEBHOOK_DOC = "Deliveries follow Standard Webhooks 1.0: headers `webhook-id` (the delivery id, the same on every retry), `webhook-timestamp` and `webhook-signature` (`v1,<base64 HMAC-SHA256>`; two during a secret rotation overlap). Only a 2xx answer delivers; redirects are not followed; a 410 disables the endpoint; other answers are retried with exponential backoff and jitter. Payload: `{type, timestamp, data: {id, kind, status, dataset, links}}`.";
 
-function operations(): Op[] {
+function operations(): DocumentedOperation[] {
   return [
     {
       method: "get", path: "/api/v1/jobs/{id}/provenance", summary: "The signed W3C PROV-JSON provenance of a succeeded job", permission: "provenance:read", params: J.IdParams,
@@ -46,7 +34,7 @@ function operations(): Op[] {
       ok: { status: 200, description: "The Item.", content: { "application/geo+json": { schema: { type: "object" } } } }, errors: [...AUTH, 404, 409],
     },
     {
-      method: "post", path: "/api/v1/provenance/verify", summary: "Verify a provenance document and its signature", permission: "provenance:read", body: P.ProvenanceVerifyBody,
+      method: "post", path: "/api/v1/provenance/verify", summary: "Verify a provenance document and its signature", permission: "provenance:read", body: jsonBody(P.ProvenanceVerifyBody),
       description: "Checks the detached JWS over the document's bytes against the published keys (retired keys included) and, given file hashes, that each is an input or artifact of the document. `npm run verify -- doc.json sig.jws --files …` does the same offline.",
       ok: { status: 200, description: "The verdict.", content: json(P.ProvenanceVerifyResult) }, errors: [...AUTH, 415, 422],
     },
@@ -58,14 +46,14 @@ function operations(): Op[] {
     },
     { method: "get", path: "/api/v1/webhooks", summary: "Webhook endpoints", permission: "keys:manage", description: WEBHOOK_DOC, ok: { status: 200, description: "Endpoints.", content: json(W.WebhookEndpointList) }, errors: AUTH },
     {
-      method: "post", path: "/api/v1/webhooks", summary: "Register a webhook endpoint", permission: "keys:manage", body: W.WebhookCreateBody, description: WEBHOOK_DOC,
+      method: "post", path: "/api/v1/webhooks", summary: "Register a webhook endpoint", permission: "keys:manage", body: jsonBody(W.WebhookCreateBody), description: WEBHOOK_DOC,
       ok: { status: 201, description: "The endpoint and its secret, shown once.", content: json(W.WebhookEndpointWithSecret) }, errors: [...AUTH, 415, 422],
     },
     { method: "get", path: "/api/v1/webhooks/{id}", summary: "A webhook endpoint", permission: "keys:manage", params: W.WebhookParams, ok: { status: 200, description: "The endpoint.", content: json(W.WebhookEndpoint) }, errors: [...AUTH, 404] },
-    { method: "patch", path: "/api/v1/webhooks/{id}", summary: "Change a webhook endpoint", permission: "keys:manage", params: W.WebhookParams, body: W.WebhookUpdateBody, ok: { status: 200, description: "The endpoint.", content: json(W.WebhookEndpoint) }, errors: [...AUTH, 404, 415, 422] },
+    { method: "patch", path: "/api/v1/webhooks/{id}", summary: "Change a webhook endpoint", permission: "keys:manage", params: W.WebhookParams, body: jsonBody(W.WebhookUpdateBody), ok: { status: 200, description: "The endpoint.", content: json(W.WebhookEndpoint) }, errors: [...AUTH, 404, 415, 422] },
     { method: "delete", path: "/api/v1/webhooks/{id}", summary: "Remove a webhook endpoint", permission: "keys:manage", params: W.WebhookParams, ok: { status: 204, description: "Removed with its delivery log." }, errors: [...AUTH, 404] },
     {
-      method: "post", path: "/api/v1/webhooks/{id}/rotate-secret", summary: "Rotate a webhook endpoint's secret", permission: "keys:manage", params: W.WebhookParams, body: W.WebhookRotateBody,
+      method: "post", path: "/api/v1/webhooks/{id}/rotate-secret", summary: "Rotate a webhook endpoint's secret", permission: "keys:manage", params: W.WebhookParams, body: jsonBody(W.WebhookRotateBody),
       description: "Deliveries carry signatures by both secrets until `previousSecretUntil`, so the receiver can switch without losing any.",
       ok: { status: 200, description: "The new secret, shown once.", content: json(W.WebhookEndpointWithSecret) }, errors: [...AUTH, 404, 415, 422],
     },
@@ -76,17 +64,5 @@ function operations(): Op[] {
 }
 
 export function registerProvenanceOperations(registry: OpenAPIRegistry, problem: z.ZodType): void {
-  for (const op of operations()) {
-    const responses: RouteConfig["responses"] = { [op.ok.status]: { description: op.ok.description, ...(op.ok.content ? { content: op.ok.content as never } : {}) } };
-    for (const status of op.errors) responses[status] = { description: ERROR_TEXT[status], content: { "application/problem+json": { schema: problem } } };
-    registry.registerPath({
-      method: op.method, path: op.path, summary: op.summary, description: op.description,
-      security: [{ session: [] }, { apiKey: [] }], "x-permission": op.permission,
-      request: {
-        ...(op.params ? { params: op.params } : {}), ...(op.query ? { query: op.query } : {}),
-        ...(op.body ? { body: { required: true, content: json(op.body) } } : {}),
-      },
-      responses,
-    });
-  }
+  registerOperations(registry, problem, { errorText: ERROR_TEXT }, operations());
 }
