@@ -145,6 +145,7 @@ describe("upload → drainage job → artifacts with RILLSCALE_STORAGE=s3 (issue
       const res = await call(`/api/v1/jobs/${jobId}/artifacts/${a.name}`);
       expect(res.status).toBe(200);
       expect(res.headers.get("content-type")).toBe(a.mediaType);
+      expect(res.headers.get("content-length")).toBe(String(a.sizeBytes));
       served[a.name] = Buffer.from(await res.arrayBuffer());
     }
   });
@@ -196,6 +197,7 @@ describe("upload → drainage job → artifacts with RILLSCALE_STORAGE=s3 (issue
         const res = await call(`/api/v1/jobs/${jobId}/artifacts/${a.name}`, { headers: { range: c.header } });
         expect(res.status, `${a.name} ${c.header}`).toBe(206);
         expect(res.headers.get("content-range")).toBe(`bytes ${c.start}-${c.end}/${whole.length}`);
+        expect(res.headers.get("content-length")).toBe(String(c.end - c.start + 1));
         expect(Buffer.from(await res.arrayBuffer()).equals(whole.subarray(c.start, c.end + 1)), `${a.name} ${c.header}`).toBe(true);
       }
       // derived: the server asked S3 for each range, not for the whole object
