@@ -51,11 +51,21 @@ export async function api<T>(path: string, request: ApiRequest = {}): Promise<T>
     return undefined as T;
   }
   const parsed: unknown = text.length > 0 ? safeJson(text) : {};
-  if (!response.ok) {
-    const body = typeof parsed === "object" && parsed !== null ? (parsed as Record<string, unknown>) : {};
-    throw new ApiProblem(response.status, body, response.headers.get("retry-after"));
-  }
+  if (!response.ok) throw problemOf(response, parsed);
   return parsed as T;
+}
+
+/** GETs `/api/v1${path}` as raw bytes (a signed document must not be re-serialised); rejects with ApiProblem. */
+export async function apiBytes(path: string): Promise<Uint8Array<ArrayBuffer>> {
+  const response = await fetch(`/api/v1${path}`, { credentials: "same-origin" });
+  const bytes = new Uint8Array(await response.arrayBuffer());
+  if (!response.ok) throw problemOf(response, safeJson(new TextDecoder().decode(bytes)));
+  return bytes;
+}
+
+function problemOf(response: Response, parsed: unknown): ApiProblem {
+  const body = typeof parsed === "object" && parsed !== null ? (parsed as Record<string, unknown>) : {};
+  return new ApiProblem(response.status, body, response.headers.get("retry-after"));
 }
 
 function safeJson(text: string): unknown {

@@ -16,6 +16,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/jobs", label: "Jobs", permission: "jobs:read" },
   { href: "/keys", label: "API keys", permission: "keys:manage" },
   { href: "/webhooks", label: "Webhooks", permission: "keys:manage" },
+  { href: "/signing-keys", label: "Signing keys", permission: "keys:manage" },
   { href: "/members", label: "Members", permission: "members:manage" },
   { href: "/audit", label: "Audit log", permission: "audit:read" },
   { href: "/dev/mail", label: "Dev mail", permission: "mail:read-dev", devMailOnly: true },

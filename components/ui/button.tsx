@@ -24,3 +24,7 @@ export function Button({ variant = "secondary", size = "md", className = "", typ
     />
   );
 }
+
+/** A link (a download, another page) drawn as a small secondary button. */
+export const LINK_BUTTON_CLASS =
+  "inline-flex items-center rounded border border-paper-edge bg-white px-2 py-1 text-xs font-medium text-graphite hover:bg-paper-sunk hover:no-underline";

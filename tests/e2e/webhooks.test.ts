@@ -6,10 +6,10 @@ import http from "node:http";
 import type { AddressInfo } from "node:net";
 import { mkdirSync, readFileSync } from "node:fs";
 import path from "node:path";
-import { type Browser, type BrowserContext, type Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { Webhook } from "standardwebhooks";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { baseUrl, launchChromium, ROOT, SCREENSHOTS, signIn } from "./browser";
+import { baseUrl, launchChromium, ROOT, SCREENSHOTS, signedInContext, type SignedIn } from "./browser";
 
 const ADMIN = "admin@tallow-creek.example";
 const ANALYST = "analyst@tallow-creek.example";
@@ -23,14 +23,7 @@ let receiver: http.Server;
 let hookUrl = "";
 let browser: Browser;
 
-async function signedInPage(email: string): Promise<{ context: BrowserContext; page: Page }> {
-  const context = await browser.newContext({ viewport: { width: 1360, height: 900 } });
-  await context.grantPermissions(["clipboard-read", "clipboard-write"], { origin: baseUrl() });
-  const page = await context.newPage();
-  await signIn(page, email);
-  await page.getByRole("navigation", { name: "Console" }).waitFor();
-  return { context, page };
-}
+const signedInPage = (email: string) => signedInContext(browser, email, { clipboard: true });
 
 async function until<T>(f: () => T | undefined, timeoutMs = DELIVERY_DEADLINE_MS): Promise<T> {
   const deadline = Date.now() + timeoutMs;
@@ -63,7 +56,7 @@ afterAll(async () => {
 });
 
 describe("console: an admin's webhook endpoint from registration to a rotated secret", () => {
-  let admin: { context: BrowserContext; page: Page };
+  let admin: SignedIn;
   let firstSecret = "";
   let jobId = "";
   let firstDelivery: Received;

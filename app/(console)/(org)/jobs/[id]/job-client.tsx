@@ -22,6 +22,7 @@ import { FractalResult, type FractalSummary } from "@/components/jobs/fractal-re
 import { JobStatusBadge, ProgressBar, formatDuration } from "@/components/jobs/job-status";
 import { KIND_LABELS } from "@/components/jobs/kind-label";
 import { NetworkResult } from "@/components/jobs/network-result";
+import { ProvenanceSection } from "@/components/jobs/provenance-section";
 import { Alert } from "@/components/ui/alert";
 import { Button } from "@/components/ui/button";
 import { PageHeader } from "@/components/ui/page-header";
@@ -158,6 +159,9 @@ export function JobDetail({ id }: { id: string }) {
       {succeeded && !readResults && <Alert tone="info">Your role cannot read results.</Alert>}
       {artifacts.data !== undefined && <Downloads artifacts={artifacts.data.items} />}
       {artifacts.error !== null && <Alert>{describeProblem(artifacts.error)}</Alert>}
+      {artifacts.data !== undefined && allows(me, "provenance:read") && (
+        <ProvenanceSection jobId={j.id} artifacts={artifacts.data.items} dataset={dataset.data} />
+      )}
       {result.error !== null && <Alert>{describeProblem(result.error)}</Alert>}
       {result.isPending && succeeded && readResults && <p className="text-graphite-muted">Loading the result…</p>}
       {result.data !== undefined && <ResultView result={result.data} />}

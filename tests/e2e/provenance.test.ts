@@ -1,0 +1,163 @@
+// Signed provenance in a real browser: an auditor downloads a finished job's PROV-JSON and detached JWS from the
+// job page (checked byte for byte against the API), verifies them in the page (signature, key id, the hashes of
+// the input and of every artifact re-hashed in the browser); an analyst has no provenance section; an admin
+// rotates the signing key on the signing-keys page and the earlier document still verifies with the retired key.
+import { mkdirSync, readFileSync } from "node:fs";
+import path from "node:path";
+import type { Browser } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { baseUrl, launchChromium, ROOT, SCREENSHOTS, signedInContext, type SignedIn } from "./browser";
+
+const ADMIN = "admin@tallow-creek.example";
+const ANALYST = "analyst@tallow-creek.example";
+const AUDITOR = "auditor@tallow-creek.example";
+// 95 × 90 cells of 30″ (tests/fixtures/README.md): a drainage job on it ends in seconds.
+const DEM = path.join(ROOT, "tests/fixtures/cache/debian/elev.tif");
+const JOB_DEADLINE_MS = 120_000;
+
+let browser: Browser;
+
+const signedInPage = (email: string) => signedInContext(browser, email);
+
+async function poll<T>(f: () => Promise<T | undefined>, timeoutMs = JOB_DEADLINE_MS): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const v = await f();
+    if (v !== undefined) return v;
+    if (Date.now() > deadline) throw new Error("timed out");
+    await new Promise((r) => setTimeout(r, 200));
+  }
+}
+
+const kidOf = (jws: string) => (JSON.parse(Buffer.from(jws.split(".")[0]!, "base64url").toString("utf8")) as { kid: string }).kid;
+
+beforeAll(async () => {
+  mkdirSync(SCREENSHOTS, { recursive: true });
+  browser = await launchChromium();
+});
+
+afterAll(async () => {
+  await browser?.close();
+});
+
+describe("console: a finished job's signed provenance", () => {
+  let admin: SignedIn;
+  let auditor: SignedIn;
+  let jobId = "";
+  let artifactNames: string[] = [];
+  let firstKid = "";
+
+  beforeAll(async () => {
+    admin = await signedInPage(ADMIN);
+    auditor = await signedInPage(AUDITOR);
+    const request = admin.page.request;
+    const upload = await request.post(`${baseUrl()}/api/v1/datasets?filename=elev.tif`, { headers: { "content-type": "image/tiff" }, data: readFileSync(DEM) });
+    expect([200, 201]).toContain(upload.status());
+    const dataset = ((await upload.json()) as { id: string }).id;
+    const submitted = await request.post(`${baseUrl()}/api/v1/jobs`, {
+      data: { dataset, kind: "drainage", params: { channelThreshold: { method: "area", km2: 6.5 } } },
+    });
+    expect(submitted.status()).toBe(202);
+    jobId = ((await submitted.json()) as { id: string }).id;
+    const status = await poll(async () => {
+      const s = ((await (await request.get(`${baseUrl()}/api/v1/jobs/${jobId}`)).json()) as { status: string }).status;
+      return s === "queued" || s === "running" ? undefined : s;
+    });
+    expect(status).toBe("succeeded");
+    // The worker signs within a poll or two of the job's end.
+    await poll(async () => ((await request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance.jws`)).status() === 200 ? true : undefined));
+    const artifacts = (await (await request.get(`${baseUrl()}/api/v1/jobs/${jobId}/artifacts`)).json()) as { items: { name: string }[] };
+    artifactNames = artifacts.items.map((a) => a.name);
+    expect(artifactNames.length).toBeGreaterThan(0);
+  });
+
+  afterAll(async () => {
+    await admin?.context.close();
+    await auditor?.context.close();
+  });
+
+  test("the auditor downloads the PROV-JSON and the JWS from the job page, byte for byte as the API serves them", async () => {
+    const { page } = auditor;
+    await page.goto(`${baseUrl()}/jobs/${jobId}`);
+    const section = page.getByRole("region", { name: "Provenance" });
+    await section.waitFor();
+
+    const [doc] = await Promise.all([page.waitForEvent("download"), section.getByRole("link", { name: "Download PROV-JSON" }).click()]);
+    expect(doc.suggestedFilename()).toBe(`provenance-${jobId}.json`);
+    const docBytes = readFileSync(await doc.path());
+    const direct = await page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance`);
+    expect(Buffer.compare(docBytes, await direct.body())).toBe(0);
+    const prov = JSON.parse(docBytes.toString("utf8")) as { entity: object; activity: Record<string, unknown> };
+    expect(Object.keys(prov.activity)).toEqual([`rill:job-${jobId}`]);
+
+    const [sig] = await Promise.all([page.waitForEvent("download"), section.getByRole("link", { name: "Download signature (JWS)" }).click()]);
+    const jws = readFileSync(await sig.path(), "utf8").trim();
+    // RFC 7797 detached compact form: header..signature.
+    expect(jws).toMatch(/^[A-Za-z0-9_-]+\.\.[A-Za-z0-9_-]+$/);
+    firstKid = kidOf(jws);
+  });
+
+  test("Verify in the page reports a valid signature, the key id, and each artifact's browser-computed hash in the document", async () => {
+    const { page } = auditor;
+    const section = page.getByRole("region", { name: "Provenance" });
+    await section.getByRole("button", { name: "Verify" }).click();
+    const outcome = section.getByTestId("provenance-verification");
+    await outcome.waitFor();
+    expect(await outcome.getByRole("status").textContent()).toContain("Verified.");
+    expect(await outcome.getByTestId("signature-state").textContent()).toMatch(/^valid/);
+    expect(await outcome.getByTestId("signing-kid").textContent()).toBe(firstKid);
+    const jwks = (await (await page.request.get(`${baseUrl()}/.well-known/jwks.json`)).json()) as { keys: { kid: string }[] };
+    expect(jwks.keys.map((k) => k.kid)).toContain(firstKid);
+
+    const rows = outcome.getByRole("table", { name: "Hashes checked" }).locator("tbody tr");
+    // The input dataset and every artifact: each hash matches an entity of the signed document.
+    expect(await rows.count()).toBe(artifactNames.length + 1);
+    for (const name of [...artifactNames, "elev.tif"]) {
+      expect(await rows.filter({ hasText: name }).locator('[data-cell="match"]').textContent()).toMatch(/^matches rill:/);
+    }
+    expect(await outcome.getByRole("note", { name: "Caution" }).textContent()).toContain("Screening analysis");
+    await page.screenshot({ path: path.join(SCREENSHOTS, "job-provenance-verified.png"), fullPage: true });
+  });
+
+  test("an analyst, who lacks provenance:read, sees the job page without a provenance section", async () => {
+    const analyst = await signedInPage(ANALYST);
+    try {
+      await analyst.page.goto(`${baseUrl()}/jobs/${jobId}`);
+      await analyst.page.getByRole("table", { name: "Artifacts" }).waitFor();
+      expect(await analyst.page.getByRole("region", { name: "Provenance" }).count()).toBe(0);
+      expect((await analyst.page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance`)).status()).toBe(403);
+    } finally {
+      await analyst.context.close();
+    }
+  });
+
+  test("the admin rotates the signing key; the list shows the old key retired, and the old document still verifies", async () => {
+    const { page } = admin;
+    await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Signing keys" }).click();
+    const table = page.getByRole("table", { name: "Signing keys" });
+    const oldRow = table.getByRole("row", { name: new RegExp(firstKid) });
+    await expect.poll(async () => (await oldRow.textContent()) ?? "").toContain("Active");
+    await page.getByRole("button", { name: "Rotate now" }).click();
+    await page.getByRole("dialog", { name: "Rotate the signing key now?" }).getByRole("button", { name: "Rotate signing key" }).click();
+    await page.getByText("now signs new documents").waitFor();
+    await expect.poll(async () => (await oldRow.textContent()) ?? "").toContain("Retired");
+    expect(await table.locator("tbody tr").filter({ hasText: "Active" }).count()).toBe(1);
+    await page.screenshot({ path: path.join(SCREENSHOTS, "signing-keys-rotated.png"), fullPage: true });
+
+    const a = auditor.page;
+    await a.reload();
+    const section = a.getByRole("region", { name: "Provenance" });
+    await section.getByRole("button", { name: "Verify" }).click();
+    const outcome = section.getByTestId("provenance-verification");
+    await outcome.waitFor();
+    expect(await outcome.getByRole("status").textContent()).toContain("Verified.");
+    expect(await outcome.getByTestId("signing-kid").textContent()).toBe(firstKid);
+  });
+
+  test("an auditor is not shown the admin-only Signing keys page", async () => {
+    const { page } = auditor;
+    expect(await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Signing keys" }).count()).toBe(0);
+    await page.goto(`${baseUrl()}/signing-keys`);
+    await page.getByText("Signing keys are for org admins only").waitFor();
+  });
+});
