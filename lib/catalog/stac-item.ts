@@ -23,13 +23,27 @@ export interface StacJobFacts {
   artifacts: { name: string; mediaType: string; sizeBytes: number; sha256: string }[];
 }
 
+/**
+ * One asset of the Item: STAC 1.1.0 requires `href`; the File and Projection fields are set where they apply.
+ * A type alias, not an interface, so it stays assignable to the open (index-signature) asset type of the schemas.
+ */
+export type ItemAsset = {
+  href: string;
+  type: string;
+  title: string;
+  roles: string[];
+  "file:checksum"?: string;
+  "file:size"?: number;
+  "proj:code"?: string;
+};
+
 const rolesOf = (mediaType: string): string[] => (mediaType.startsWith("text/csv") ? ["data", "table"] : ["data"]);
 
 export function buildStacItem(f: StacJobFacts) {
   const [w, s, e, n] = f.bboxLonLat;
   if (!(w <= e && s <= n)) throw new RangeError(`bbox must be [west, south, east, north] with west ≤ east and south ≤ north, got ${f.bboxLonLat.join(", ")}`);
   const base = `${f.baseUrl.replace(/\/$/, "")}/api/v1/jobs/${f.job.id}`;
-  const assets: Record<string, Record<string, unknown>> = {};
+  const assets: Record<string, ItemAsset> = {};
   for (const a of f.artifacts) {
     assets[a.name] = {
       href: `${base}/artifacts/${encodeURIComponent(a.name)}`, type: a.mediaType, title: a.name, roles: rolesOf(a.mediaType),
