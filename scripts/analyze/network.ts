@@ -1,11 +1,11 @@
 // npm run analyze -- network <file.geojson|file.zip|file.shp> [--outlet=lon,lat] [--out dir] [options]
 // Runs lib/pipelines/network on a local file and writes summary.json and the artifacts into --out.
-import { mkdir, readFile, writeFile } from "node:fs/promises";
+import { mkdir, readFile } from "node:fs/promises";
 import path from "node:path";
-import { parseArgs } from "node:util";
 import { ZodError } from "zod";
 import { networkParamsSchema, runNetwork, type NetworkParams } from "@/lib/pipelines/network";
 import { VectorError } from "@/lib/vector/vector-error";
+import { runCommand, writeArtifacts, writeJson } from "./cli";
 
 const USAGE = `usage: npm run analyze -- network <file.geojson|file.zip|file.shp> [options]
   --outlet=LON,LAT            outlet point, degrees WGS 84 (write it with "=" when the longitude is negative)
@@ -35,30 +35,19 @@ async function basinFrom(file: string): Promise<unknown> {
   return doc;
 }
 
-export async function main(argv: string[]): Promise<number> {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: argv,
-      allowPositionals: true,
-      options: {
-        outlet: { type: "string" }, out: { type: "string" }, epsg: { type: "string" },
-        "snap-tolerance": { type: "string" }, "outlet-radius": { type: "string" }, "dangle-length": { type: "string" },
-        components: { type: "string" }, "flow-direction-field": { type: "string" }, "id-field": { type: "string" },
-        "downstream-id-field": { type: "string" }, dem: { type: "string" }, basin: { type: "string" },
-        "exclude-highest-order": { type: "boolean" }, help: { type: "boolean" },
-      },
-    });
-  } catch (e) {
-    console.error(`${(e as Error).message}\n${USAGE}`);
-    return 2;
-  }
-  const { values: v, positionals } = parsed;
-  if (v.help) { console.log(USAGE); return 0; }
-  if (positionals.length !== 1) { console.error(USAGE); return 2; }
-  const file = path.resolve(positionals[0]);
-  const out = path.resolve(v.out ?? `${file.replace(/\.[^./]+$/, "")}-network`);
-  try {
+export const main = (argv: string[]) => runCommand(argv, {
+  name: "network",
+  usage: USAGE,
+  options: {
+    outlet: { type: "string" }, out: { type: "string" }, epsg: { type: "string" },
+    "snap-tolerance": { type: "string" }, "outlet-radius": { type: "string" }, "dangle-length": { type: "string" },
+    components: { type: "string" }, "flow-direction-field": { type: "string" }, "id-field": { type: "string" },
+    "downstream-id-field": { type: "string" }, dem: { type: "string" }, basin: { type: "string" },
+    "exclude-highest-order": { type: "boolean" }, help: { type: "boolean" },
+  },
+  async run(input, v) {
+    const file = path.resolve(input);
+    const out = path.resolve(v.out ?? `${file.replace(/\.[^./]+$/, "")}-network`);
     const outlet = v.outlet?.split(",").map((s, i) => number(i === 0 ? "outlet longitude" : "outlet latitude", s.trim()));
     if (outlet && outlet.length !== 2) throw new RangeError(`--outlet must be LON,LAT, got ${JSON.stringify(v.outlet)}`);
     const params: NetworkParams = {
@@ -77,18 +66,18 @@ export async function main(argv: string[]): Promise<number> {
     for (const key of Object.keys(params) as (keyof NetworkParams)[]) if (params[key] === undefined) delete params[key];
     const { summary, artifacts } = await runNetwork({ path: file, demPath: v.dem && path.resolve(v.dem) }, networkParamsSchema.parse(params));
     await mkdir(out, { recursive: true });
-    await writeFile(path.join(out, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
-    for (const a of artifacts) await writeFile(path.join(out, a.name), a.bytes);
+    await writeJson(out, "summary.json", summary);
+    await writeArtifacts(out, artifacts);
     const h = summary.horton;
     console.log(`${summary.network.links} links, highest order ${h.highestOrder}, ` +
       `R_B ${h.bifurcation?.value.toFixed(3) ?? "–"}, R_L ${h.length?.value.toFixed(3) ?? "–"}; ` +
       `${summary.topology.loops.count} loops removed, ${summary.topology.reversedPieces} pieces reversed → ${out}`);
-    return 0;
-  } catch (e) {
-    if (e instanceof VectorError) console.error(`network: ${e.detail}`);
-    else if (e instanceof ZodError) console.error(`network: invalid parameters: ${e.issues.map((i) => `${i.path.join(".")}: ${i.message}`).join("; ")}`);
-    else if (e instanceof RangeError) console.error(`network: ${e.message}`);
-    else throw e;
-    return 1;
-  }
-}
+  },
+  // the failures a user can cause get one line; anything else is a bug and keeps its stack
+  failure(e) {
+    if (e instanceof VectorError) return e.detail;
+    if (e instanceof ZodError) return `invalid parameters: ${e.issues.map((i) => `${i.path.join(".")}: ${i.message}`).join("; ")}`;
+    if (e instanceof RangeError) return e.message;
+    return undefined;
+  },
+});
