@@ -28,6 +28,15 @@ const NOT_REACHED = 0x3fffffff;
 /** flag: the cell touches a draining cell of equal elevation, so it is one step from an outlet */
 const WAY_OUT = 1 << 30;
 
+export interface FlatOptions {
+  /** checked every few hundred rows; an aborted signal throws its reason */
+  signal?: AbortSignal;
+  /** bit set of the cells that may be flat (cell j is bit j & 31 of word j >> 5), holding every flat
+   *  cell, as `priorityFlood` fills it through its `flatCandidates` option; only these cells are
+   *  tested. Without it every interior cell is. */
+  candidates?: Int32Array;
+}
+
 /**
  * Finds the flats of `dem` (after depression filling without epsilon) and builds increments that route
  * each flat to its outlets: 2·(steps to the nearest draining cell of equal elevation) + (M − steps from
@@ -38,85 +47,108 @@ const WAY_OUT = 1 << 30;
  * increments by a constant, which keeps every difference D8 compares inside a flat, and spares a
  * label grid and one pass over the flat cells.
  */
-export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortSignal } = {}): FlatResolution {
+export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {}): FlatResolution {
   const { data: z, width: w, height: h } = dem;
   if (z.length !== w * h) {
     throw new RangeError(`grid data has ${z.length} cells, expected ${w}×${h} = ${w * h}`);
   }
+  const n = w * h;
+  const words = (n + 31) >>> 5;
+  if (options.candidates !== undefined && options.candidates.length !== words) {
+    throw new RangeError(`flat candidates have ${options.candidates.length} words, expected ${words} for ${n} cells`);
+  }
   const signal = options.signal;
   signal?.throwIfAborted();
-  const n = w * h;
+  const candidates = options.candidates ?? everyCell(n);
   const state = new Int32Array(n);
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
-  // 1. Flat cells: interior, valid, every neighbour valid and not lower (NaN fails `>=`); one with a
-  //    higher neighbour is a high edge, step 1. Edge cells and cells next to nodata are never flat:
-  //    with no lower neighbour they are outlets. The flats are counted on the way by joining runs
-  //    of flat cells that touch the runs of the row above.
+  // 1. Flat cells among the candidates, row by row: interior, valid, every neighbour valid and not
+  //    lower (NaN fails `>=`); one with a higher neighbour is a high edge, step 1. Edge cells and cells
+  //    next to nodata are never flat: with no lower neighbour they are outlets. The flats are counted
+  //    on the way by joining runs of flat cells that touch the runs of the row above.
   const runs = new FlatRuns(w);
   let flatCells = 0;
   for (let y = 1; y < h - 1; y++) {
     if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
     runs.startRow();
-    for (let x = 1, i = y * w + 1; x < w - 1; x++, i++) {
-      const zc = z[i];
-      if (zc !== zc) continue;
-      let flat = true, higher = false;
-      for (let k = 0; k < 8; k++) {
-        const zj = z[i + offsets[k]];
-        if (!(zj >= zc)) {
-          flat = false;
-          break;
+    const row = y * w, first = row + 1, last = row + w - 2;
+    for (let wi = first >> 5; wi <= last >> 5; wi++) {
+      let word = candidates[wi];
+      if (word === 0) continue;
+      if (wi === first >> 5) word &= -1 << (first & 31);
+      if (wi === last >> 5) word &= -1 >>> (31 - (last & 31));
+      while (word !== 0) {
+        const low = word & -word;
+        word ^= low;
+        const i = (wi << 5) + 31 - Math.clz32(low);
+        const zc = z[i];
+        if (zc !== zc) continue;
+        let flat = true, higher = false;
+        for (let k = 0; k < 8; k++) {
+          const zj = z[i + offsets[k]];
+          if (!(zj >= zc)) {
+            flat = false;
+            break;
+          }
+          if (zj > zc) higher = true;
         }
-        if (zj > zc) higher = true;
-      }
-      if (flat) {
-        state[i] = higher ? 1 : NOT_REACHED;
-        flatCells++;
-        runs.add(x);
+        if (flat) {
+          state[i] = higher ? 1 : NOT_REACHED;
+          flatCells++;
+          runs.add(i - row);
+        }
       }
     }
     runs.endRow();
+    // The row above now has all its neighbours decided: mark its ways out while it is in cache.
+    if (y > 1) markWaysOut(z, state, candidates, offsets, row - w + 1, row - 2);
   }
+  if (h > 2) markWaysOut(z, state, candidates, offsets, (h - 2) * w + 1, (h - 1) * w - 2);
   const result = { increments: state, flatCells, flats: runs.components(), unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
   if (flatCells === 0) return result;
 
-  // 2. Steps from higher terrain, breadth-first from the high edges. Flat cells are interior, so their
-  //    eight offsets never leave the grid, and a flat neighbour always has the cell's elevation; an
-  //    off-flat neighbour of equal elevation drains (or the cell would not be flat): a way out.
+  // 2. Steps from higher terrain, breadth-first from the high edges; the WAY_OUT bit rides along.
+  //    Flat cells are interior, so their eight offsets never leave the grid. Cells with a way out are
+  //    gathered at the front of the queue, behind its head, as they are passed: they start step 3.
+  //    Breadth-first steps do not depend on the order of the starting cells.
   const queue = new Int32Array(flatCells);
   let tail = 0;
-  for (let i = 0; i < n; i++) if (state[i] === 1) queue[tail++] = i;
+  for (let wi = 0; wi < words; wi++) {
+    let word = candidates[wi];
+    while (word !== 0) {
+      const low = word & -word;
+      word ^= low;
+      const i = (wi << 5) + 31 - Math.clz32(low);
+      if ((state[i] & ~WAY_OUT) === 1) queue[tail++] = i;
+    }
+  }
   let maxAway = 0;
+  let wayOuts = 0;
   for (let head = 0; head < tail; head++) {
-    const c = queue[head], zc = z[c], away = state[c];
+    const c = queue[head], v = state[c], away = v & ~WAY_OUT;
     if (away > maxAway) maxAway = away;
-    let wayOut = false;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
       const sj = state[j];
-      if (sj === NOT_REACHED) {
-        state[j] = away + 1;
+      if ((sj & ~WAY_OUT) === NOT_REACHED) {
+        state[j] = (away + 1) | (sj & WAY_OUT);
         queue[tail++] = j;
-      } else if (sj === 0 && z[j] === zc) {
-        wayOut = true;
       }
     }
-    if (wayOut) state[c] = away | WAY_OUT;
+    if ((v & WAY_OUT) !== 0) queue[wayOuts++] = c;
   }
   signal?.throwIfAborted();
-  // Flats without higher terrain were not searched: find their ways out directly.
+  // Flats without higher terrain were not searched: gather their ways out here.
   if (tail < flatCells) {
-    for (let i = 0; i < n; i++) {
-      if (state[i] !== NOT_REACHED) continue;
-      const zc = z[i];
-      for (let k = 0; k < 8; k++) {
-        const j = i + offsets[k];
-        if (state[j] === 0 && z[j] === zc) {
-          state[i] = NOT_REACHED | WAY_OUT;
-          break;
-        }
+    for (let wi = 0; wi < words; wi++) {
+      let word = candidates[wi];
+      while (word !== 0) {
+        const low = word & -word;
+        word ^= low;
+        const i = (wi << 5) + 31 - Math.clz32(low);
+        if (state[i] === (NOT_REACHED | WAY_OUT)) queue[wayOuts++] = i;
       }
     }
   }
@@ -127,17 +159,14 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
     const away = v & ~WAY_OUT;
     return away === NOT_REACHED ? 0 : maxAway - away;
   };
-  tail = 0;
   let maxIncrement = 0;
-  for (let i = 0; i < n; i++) {
-    const v = state[i];
-    if (v > 0 && (v & WAY_OUT) !== 0) {
-      const inc = 2 + awayTerm(v);
-      if (inc > maxIncrement) maxIncrement = inc;
-      state[i] = -inc;
-      queue[tail++] = i;
-    }
+  for (let q = 0; q < wayOuts; q++) {
+    const i = queue[q];
+    const inc = 2 + awayTerm(state[i]);
+    if (inc > maxIncrement) maxIncrement = inc;
+    state[i] = -inc;
   }
+  tail = wayOuts;
   for (let head = 0, step = 2; head < tail; step++) {
     const levelEnd = tail;
     for (; head < levelEnd; head++) {
@@ -154,33 +183,77 @@ export function resolveFlats(dem: Grid<Float32Array>, options: { signal?: AbortS
       }
     }
   }
+  signal?.throwIfAborted();
 
-  // 4. Increments back to positive. Cells still positive belong to flats without a way out: they get
-  //    0 and their flats are counted by a search over them alone.
+  // 4. Increments back to positive: when every flat cell was reached, the queue lists them all.
+  //    Otherwise the cells still positive belong to flats without a way out: they get 0 and their
+  //    flats are counted by a search over them alone.
+  if (tail === flatCells) {
+    for (let q = 0; q < tail; q++) state[queue[q]] = -state[queue[q]];
+    return { ...result, maxIncrement };
+  }
   let unresolvedCells = 0;
   let unresolvedFlats = 0;
-  for (let i = 0; i < n; i++) {
-    const v = state[i];
-    if (v < 0) {
-      state[i] = -v;
-    } else if (v > 0) {
-      unresolvedFlats++;
-      state[i] = 0;
-      queue[0] = i;
-      for (let head = 0, end = 1; head < end; head++) {
-        const c = queue[head];
-        unresolvedCells++;
-        for (let k = 0; k < 8; k++) {
-          const j = c + offsets[k];
-          if (state[j] > 0) {
-            state[j] = 0;
-            queue[end++] = j;
+  for (let wi = 0; wi < words; wi++) {
+    let word = candidates[wi];
+    while (word !== 0) {
+      const low = word & -word;
+      word ^= low;
+      const i = (wi << 5) + 31 - Math.clz32(low);
+      const v = state[i];
+      if (v < 0) {
+        state[i] = -v;
+      } else if (v > 0) {
+        unresolvedFlats++;
+        state[i] = 0;
+        queue[0] = i;
+        for (let head = 0, end = 1; head < end; head++) {
+          const c = queue[head];
+          unresolvedCells++;
+          for (let k = 0; k < 8; k++) {
+            const j = c + offsets[k];
+            if (state[j] > 0) {
+              state[j] = 0;
+              queue[end++] = j;
+            }
           }
         }
       }
     }
   }
   return { ...result, unresolvedFlats, unresolvedCells, maxIncrement };
+}
+
+/** Sets WAY_OUT on the flat cells among the candidates first … last (inclusive, one row) that touch a
+ *  cell of equal elevation off the flats: that cell drains (or it would be flat), so it is an outlet. */
+function markWaysOut(z: Float32Array, state: Int32Array, candidates: Int32Array, offsets: Int32Array, first: number, last: number): void {
+  for (let wi = first >> 5; wi <= last >> 5; wi++) {
+    let word = candidates[wi];
+    if (word === 0) continue;
+    if (wi === first >> 5) word &= -1 << (first & 31);
+    if (wi === last >> 5) word &= -1 >>> (31 - (last & 31));
+    while (word !== 0) {
+      const low = word & -word;
+      word ^= low;
+      const c = (wi << 5) + 31 - Math.clz32(low);
+      if (state[c] === 0) continue;
+      const zc = z[c];
+      for (let k = 0; k < 8; k++) {
+        const j = c + offsets[k];
+        if (state[j] === 0 && z[j] === zc) {
+          state[c] |= WAY_OUT;
+          break;
+        }
+      }
+    }
+  }
+}
+
+/** A bit set holding cells 0 … n − 1 (the bits past n in the last word stay clear). */
+function everyCell(n: number): Int32Array {
+  const set = new Int32Array((n + 31) >>> 5).fill(-1);
+  if ((n & 31) !== 0) set[set.length - 1] = -1 >>> (32 - (n & 31));
+  return set;
 }
 
 /**

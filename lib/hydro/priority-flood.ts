@@ -13,6 +13,11 @@ export interface PriorityFloodOptions {
   traceSlopes?: boolean;
   /** checked every ABORT_CHECK_CELLS cells; an aborted signal throws its reason */
   signal?: AbortSignal;
+  /** a zeroed bit set of (width·height + 31) >> 5 words (cell j is bit j & 31 of word j >> 5) in which
+   *  the flood sets the bit of every cell it raises or closes from a neighbour of equal elevation. Every
+   *  flat cell (no lower neighbour) is among them, since the cell that closes another is never higher
+   *  than it ends up; `resolveFlats` then tests these cells only, not the whole grid. */
+  flatCandidates?: Int32Array;
 }
 
 export interface PriorityFloodResult {
@@ -195,9 +200,14 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   const signal = options.signal;
   signal?.throwIfAborted();
   const n = w * h;
+  const words = (n + 31) >>> 5;
+  if (options.flatCandidates !== undefined && options.flatCandidates.length !== words) {
+    throw new RangeError(`flat candidates have ${options.flatCandidates.length} words, expected ${words} for ${n} cells`);
+  }
+  const marks = options.flatCandidates;
   // One bit per cell (n/8 bytes: 2 MB on a 4096² grid, which stays in cache where a byte per cell
   // would not); cell j is bit j & 31 of word j >> 5.
-  const closed = new Int32Array((n + 31) >>> 5);
+  const closed = new Int32Array(words);
   const heap = new RadixQueue();
   const bits = new Int32Array(z.buffer, z.byteOffset, n);
   const pit = new CellQueue();
@@ -286,6 +296,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
         const j = t + offsets[k];
         if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0) {
           closed[j >> 5] |= 1 << (j & 31);
+          if (marks !== undefined && z[j] === zt) marks[j >> 5] |= 1 << (j & 31);
           slope.push(j);
         }
       }
@@ -316,9 +327,11 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
         cellsRaised++;
         if (level - zj > maxRaise) maxRaise = level - zj;
         z[j] = level;
+        if (marks !== undefined) marks[j >> 5] |= 1 << (j & 31);
         pit.push(j);
         plainQueueCells++;
       } else if (zj === zc) {
+        if (marks !== undefined) marks[j >> 5] |= 1 << (j & 31);
         pit.push(j); // already at the flood level: no priority needed
         plainQueueCells++;
       } else if (traceSlopes) {

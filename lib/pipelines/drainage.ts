@@ -192,9 +192,11 @@ function streamsGeoJson(network: StreamNetwork, order: Int32Array, magnitude: Fl
  *  collected before accumulation allocates its arrays. */
 function conditionAndRoute(z: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, signal?: AbortSignal) {
   stage("fill");
-  const fill = priorityFlood(z, { epsilon: params.epsilonFill, signal });
+  // the flood marks the cells that may be flat (a bit a cell), so flat resolution tests those only
+  const candidates = params.epsilonFill ? undefined : new Int32Array((z.data.length + 31) >>> 5);
+  const fill = priorityFlood(z, { epsilon: params.epsilonFill, signal, flatCandidates: candidates });
   stage("flats");
-  const flats = params.epsilonFill ? null : resolveFlats(z, { signal });
+  const flats = params.epsilonFill ? null : resolveFlats(z, { signal, candidates });
   stage("directions");
   const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, signal });
   return {

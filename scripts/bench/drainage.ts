@@ -96,9 +96,9 @@ export function makeSurface(dir: string, size: number): { raw: string; tif: stri
 
 /** Flat resolution then D8, in a function of its own so the flat increments (4 bytes per cell) are
  *  garbage once the directions exist, as in the pipeline. */
-function routeFlats(grid: Grid<Float32Array>, geometry: CellGeometry) {
+function routeFlats(grid: Grid<Float32Array>, geometry: CellGeometry, candidates: Int32Array) {
   const t0 = process.hrtime.bigint();
-  const { increments, ...flatSummary } = resolveFlats(grid);
+  const { increments, ...flatSummary } = resolveFlats(grid, { candidates });
   const flatsS = seconds(t0);
   const t1 = process.hrtime.bigint();
   const directions = d8Directions(grid, geometry, { flatIncrements: increments });
@@ -169,9 +169,10 @@ export async function main(argv: string[]): Promise<number> {
 
     const cpu0 = process.cpuUsage();
     const t1 = process.hrtime.bigint();
-    const fill = priorityFlood(grid);
+    const flatCandidates = new Int32Array((cells + 31) >>> 5);
+    const fill = priorityFlood(grid, { flatCandidates });
     const fillS = seconds(t1);
-    const { flatsS, directionsS, directions, flatSummary } = routeFlats(grid, geometry);
+    const { flatsS, directionsS, directions, flatSummary } = routeFlats(grid, geometry, flatCandidates);
     const t4 = process.hrtime.bigint();
     const acc = flowAccumulation(directions, grid, geometry);
     const accumulationS = seconds(t4);

@@ -101,6 +101,35 @@ describe("resolveFlats()", () => {
     }
   });
 
+  it("gives the same increments and counts with the flood's flat candidates as when testing every cell (invariant)", () => {
+    for (let seed = 71; seed <= 76; seed++) {
+      const dem = randomDem(45, 33, seed, 0.04);
+      const candidates = new Int32Array((45 * 33 + 31) >>> 5);
+      priorityFlood(dem, { flatCandidates: candidates });
+      const all = resolveFlats(dem);
+      const some = resolveFlats(dem, { candidates });
+      expect(all.flatCells).toBeGreaterThan(0);
+      expect(Array.from(some.increments)).toEqual(Array.from(all.increments));
+      expect({ ...some, increments: null }).toEqual({ ...all, increments: null });
+    }
+  });
+
+  it("drains a level plateau with no higher terrain to its edge: increments 2·(steps to the edge) (derived; Barnes et al. 2014)", () => {
+    const dem = gridOf(Array.from({ length: 7 }, () => Array.from({ length: 7 }, () => 3)));
+    const r = resolveFlats(dem);
+    expect(r).toMatchObject({ flatCells: 25, flats: 1, unresolvedFlats: 0, maxIncrement: 6 });
+    for (let y = 1; y < 6; y++) {
+      for (let x = 1; x < 6; x++) {
+        const towards = Math.min(x, y, 6 - x, 6 - y);
+        expect(r.increments[y * 7 + x], `cell (${x}, ${y})`).toBe(2 * towards);
+      }
+    }
+  });
+
+  it("rejects a candidate set of the wrong size (derived: one bit a cell)", () => {
+    expect(() => resolveFlats(flatWithOneOutlet(), { candidates: new Int32Array(1) })).toThrow(RangeError);
+  });
+
   it("finds no flat on a 1×1 DEM, a 2×2 DEM or a DEM fully of nodata (derived: edge cells are never flat)", () => {
     expect(resolveFlats(gridOf([[4]])).flatCells).toBe(0);
     expect(resolveFlats(gridOf([[4, 4], [4, 4]])).flatCells).toBe(0);

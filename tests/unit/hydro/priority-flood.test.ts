@@ -114,6 +114,35 @@ describe("priorityFlood()", () => {
     }
   });
 
+  it("marks every flat cell it leaves among its flat candidates, and fills as without them, on random DEMs with holes (invariant)", () => {
+    for (let seed = 21; seed <= 26; seed++) {
+      const dem = randomDem(39, 27, seed, 0.04);
+      const plain = makeGrid(Float32Array.from(dem.data), 39, 27);
+      const candidates = new Int32Array((39 * 27 + 31) >>> 5);
+      priorityFlood(dem, { flatCandidates: candidates });
+      priorityFlood(plain);
+      expect(Array.from(dem.data)).toEqual(Array.from(plain.data));
+      const z = dem.data;
+      let flat = 0, marked = 0;
+      for (let y = 1; y < 26; y++) {
+        for (let x = 1; x < 38; x++) {
+          const i = y * 39 + x;
+          let isFlat = z[i] === z[i];
+          for (let k = 0; k < 8; k++) if (!(z[(y + D8_DY[k]) * 39 + x + D8_DX[k]] >= z[i])) isFlat = false;
+          if (!isFlat) continue;
+          flat++;
+          if ((candidates[i >> 5] & (1 << (i & 31))) !== 0) marked++;
+        }
+      }
+      expect(flat).toBeGreaterThan(0);
+      expect(marked).toBe(flat);
+    }
+  });
+
+  it("rejects a flat-candidate set of the wrong size (derived: one bit a cell)", () => {
+    expect(() => priorityFlood(randomDem(40, 2, 1, 0), { flatCandidates: new Int32Array(2) })).toThrow(RangeError);
+  });
+
   it("with epsilon leaves a strictly draining surface on random DEMs with holes (Barnes et al. 2014, Algorithm 3)", () => {
     for (let seed = 11; seed <= 15; seed++) {
       const dem = randomDem(41, 29, seed, 0.03);
