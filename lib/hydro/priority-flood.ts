@@ -71,18 +71,28 @@ function keyElevation(key: number): number {
   return f32Scratch[0];
 }
 
+/** Radix of the priority queue: keys split into 4 digits of 8 bits, so an entry moves at most 3 times. */
+const DIGIT_BITS = 8;
+const DIGITS = 32 / DIGIT_BITS;
+const RADIX = 1 << DIGIT_BITS;
+/** First capacity of one bucket of the priority queue (entries); buckets double when full. */
+const INITIAL_BUCKET_CAPACITY = 16;
+
 /**
  * Priority queue of (elevation, cell) for keys that never fall below the last key taken out, as in
- * Priority-Flood, where the flood level only rises: a radix heap (Ahuja, Mehlhorn, Orlin & Tarjan 1990,
- * J. ACM 37(2):213–223). Bucket b holds keys whose highest bit differing from the last key taken is
- * b − 1; taking from an empty bucket 0 refills it from the lowest non-empty bucket. Each entry moves
- * down at most 32 times, and in practice a few, against ~log₂(size) moves per operation of a binary
- * heap. Keys and cells sit in parallel typed arrays: no object per cell.
+ * Priority-Flood, where the flood level only rises: a radix heap with radix 2⁸ (Ahuja, Mehlhorn, Orlin
+ * & Tarjan 1990, J. ACM 37(2):213–223, §4). Bucket (d, v) holds the keys whose highest 8-bit digit
+ * differing from the last key taken is digit d, and whose digit d is v; the keys of a bucket of level 0
+ * are all equal. Taking from an empty level 0 empties the lowest bucket of the lowest non-empty level
+ * into the levels below it, so an entry moves at most 3 times (a base-2 radix heap moves each entry
+ * ~10 times on elevation keys). Keys and cells sit in parallel typed arrays: no object per cell.
  */
 class RadixQueue {
   private keys: Int32Array[] = [];
   private cells: Int32Array[] = [];
-  private counts = new Int32Array(33);
+  private counts = new Int32Array(DIGITS * RADIX);
+  /** one bit per bucket, set while it holds entries: finds the lowest bucket of a level in 8 words */
+  private occupied = new Int32Array((DIGITS * RADIX) >> 5);
   /** last key taken out, which is the key of the entry `pop` returned; starts at the lowest key so
    *  any first key is accepted */
   last = -0x80000000;
@@ -90,39 +100,65 @@ class RadixQueue {
   peak = 0;
 
   constructor() {
-    for (let b = 0; b <= 32; b++) {
-      this.keys.push(new Int32Array(INITIAL_QUEUE_CAPACITY >> 4));
-      this.cells.push(new Int32Array(INITIAL_QUEUE_CAPACITY >> 4));
+    for (let b = 0; b < DIGITS * RADIX; b++) {
+      this.keys.push(new Int32Array(INITIAL_BUCKET_CAPACITY));
+      this.cells.push(new Int32Array(INITIAL_BUCKET_CAPACITY));
     }
   }
 
   push(key: number, cell: number): void {
     if (key < this.last) key = this.last; // only −0 after +0 can get here
-    this.append(32 - Math.clz32(key ^ this.last), key, cell);
+    this.append(this.bucket(key), key, cell);
     if (++this.size > this.peak) this.peak = this.size;
   }
 
   /** removes an entry with the lowest key and returns its cell; the caller checks `size > 0` first */
   pop(): number {
-    if (this.counts[0] === 0) this.refill();
+    let b = this.lowestBucket(0);
+    if (b < 0) {
+      this.refill();
+      b = this.lowestBucket(0);
+    }
+    const at = --this.counts[b];
+    if (at === 0) this.occupied[b >> 5] &= ~(1 << (b & 31));
     this.size--;
-    return this.cells[0][--this.counts[0]];
+    this.last = this.keys[b][at];
+    return this.cells[b][at];
+  }
+
+  /** Bucket of a key not below `last`: level = highest differing digit, then the key's digit there,
+   *  taken with the sign bit flipped so that digits order like the signed keys. */
+  private bucket(key: number): number {
+    const level = (31 - Math.clz32((key ^ this.last) | 1)) >> 3;
+    return (level << DIGIT_BITS) | (((key ^ 0x80000000) >>> (level << 3)) & (RADIX - 1));
+  }
+
+  /** lowest occupied bucket of a level, or −1 */
+  private lowestBucket(level: number): number {
+    const first = (level << DIGIT_BITS) >> 5;
+    for (let w = first; w < first + (RADIX >> 5); w++) {
+      const bits = this.occupied[w];
+      if (bits !== 0) return (w << 5) + 31 - Math.clz32(bits & -bits);
+    }
+    return -1;
   }
 
   private refill(): void {
-    let b = 1;
-    while (this.counts[b] === 0) b++;
+    let b = -1;
+    for (let level = 1; b < 0; level++) b = this.lowestBucket(level);
     const keys = this.keys[b], cells = this.cells[b], count = this.counts[b];
     let low = keys[0];
     for (let i = 1; i < count; i++) if (keys[i] < low) low = keys[i];
     this.last = low;
     this.counts[b] = 0;
-    // every key here shares its bits above b − 1 with `low`, so it lands in a bucket below b
-    for (let i = 0; i < count; i++) this.append(32 - Math.clz32(keys[i] ^ low), keys[i], cells[i]);
+    this.occupied[b >> 5] &= ~(1 << (b & 31));
+    // every key here shares its digits from this level up with `low`, so it lands on a lower level
+    for (let i = 0; i < count; i++) this.append(this.bucket(keys[i]), keys[i], cells[i]);
   }
 
   private append(b: number, key: number, cell: number): void {
     const at = this.counts[b]++;
+    if (at === 0) this.occupied[b >> 5] |= 1 << (b & 31);
     if (at === this.keys[b].length) {
       const keys = new Int32Array(at * 2), cells = new Int32Array(at * 2);
       keys.set(this.keys[b]);
@@ -263,6 +299,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
 
   const traceSlopes = options.traceSlopes !== false;
   const slope = new CellStack();
+  const openNeighbours = new Int32Array(8);
   let cellsRaised = 0;
   let maxRaise = 0;
   let plainQueueCells = 0;
@@ -279,12 +316,16 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
       const t = slope.pop();
       const zt = z[t];
       const level = epsilon ? nextUpFloat32(zt) : zt;
-      let below = false;
+      // one look at the neighbours: the open ones are kept in case none lies below
+      let open = 0, below = false;
       for (let k = 0; k < 8; k++) {
         const j = t + offsets[k];
-        if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0 && z[j] < level) {
-          below = true;
-          break;
+        if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0) {
+          if (z[j] < level) {
+            below = true;
+            break;
+          }
+          openNeighbours[open++] = j;
         }
       }
       if (below) {
@@ -292,13 +333,11 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
         continue;
       }
       slopeTracedCells++;
-      for (let k = 0; k < 8; k++) {
-        const j = t + offsets[k];
-        if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0) {
-          closed[j >> 5] |= 1 << (j & 31);
-          if (marks !== undefined && z[j] === zt) marks[j >> 5] |= 1 << (j & 31);
-          slope.push(j);
-        }
+      for (let q = 0; q < open; q++) {
+        const j = openNeighbours[q];
+        closed[j >> 5] |= 1 << (j & 31);
+        if (marks !== undefined && z[j] === zt) marks[j >> 5] |= 1 << (j & 31);
+        slope.push(j);
       }
       continue;
     }
