@@ -2,6 +2,7 @@
 // the log–log plot of the points it fitted (used points filled, the others hollow) with the fitted line.
 import { ScalingPlot } from "@/components/charts/scaling-plot";
 import { formatCi, formatNumber } from "@/components/jobs/numbers";
+import { DataTable, type Column } from "@/components/ui/data-table";
 
 interface DimensionRow {
   estimator: string;
@@ -62,45 +63,35 @@ function plotsOf(estimators: Record<string, unknown>) {
   });
 }
 
+const DIMENSION_COLUMNS: Column<DimensionRow>[] = [
+  { key: "estimator", header: "Estimator", className: "whitespace-nowrap font-medium", cell: (d) => d.estimator },
+  { key: "D", header: "D", className: "font-medium", cell: (d) => formatNumber(d.D, 4) },
+  { key: "se", header: "Std. error", cell: (d) => formatNumber(d.se) },
+  { key: "ci", header: "95 % CI", className: "whitespace-nowrap", cell: (d) => formatCi(d.ci95, 4) },
+  { key: "r2", header: <span className="normal-case">R²</span>, cell: (d) => formatNumber(d.rSquared, 4) },
+  {
+    key: "range",
+    header: <>Scaling range <span className="normal-case">(m)</span></>,
+    className: "whitespace-nowrap",
+    cell: (d) => `${formatNumber(d.rangeMinM, 4)} – ${formatNumber(d.rangeMaxM, 4)}`,
+  },
+  { key: "points", header: "Points fitted", cell: (d) => d.points },
+];
+
 export function FractalResult({ summary }: { summary: FractalSummary }) {
   const plots = plotsOf(summary.estimators);
   return (
     <div className="flex flex-col gap-5">
       <section aria-labelledby="dimensions-heading" className="flex flex-col gap-3">
         <h2 id="dimensions-heading">Fractal dimension by estimator</h2>
-        <div className="card overflow-x-auto">
-          <table className="table-dense" aria-label="Dimensions">
-            <thead>
-              <tr>
-                <th scope="col">Estimator</th>
-                <th scope="col">D</th>
-                <th scope="col">Std. error</th>
-                <th scope="col">95 % CI</th>
-                <th scope="col"><span className="normal-case">R²</span></th>
-                <th scope="col">Scaling range <span className="normal-case">(m)</span></th>
-                <th scope="col">Points fitted</th>
-              </tr>
-            </thead>
-            <tbody>
-              {summary.dimensions.length === 0 && (
-                <tr>
-                  <td colSpan={7} className="py-4 text-center text-graphite-muted">No estimator gave a dimension.</td>
-                </tr>
-              )}
-              {summary.dimensions.map((d) => (
-                <tr key={d.estimator}>
-                  <td className="whitespace-nowrap font-medium">{d.estimator}</td>
-                  <td className="font-medium">{formatNumber(d.D, 4)}</td>
-                  <td>{formatNumber(d.se)}</td>
-                  <td className="whitespace-nowrap">{formatCi(d.ci95, 4)}</td>
-                  <td>{formatNumber(d.rSquared, 4)}</td>
-                  <td className="whitespace-nowrap">{formatNumber(d.rangeMinM, 4)} – {formatNumber(d.rangeMaxM, 4)}</td>
-                  <td>{d.points}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Dimensions"
+          columns={DIMENSION_COLUMNS}
+          rows={summary.dimensions}
+          rowKey={(d) => d.estimator}
+          empty="No estimator gave a dimension."
+          utcCaption={false}
+        />
         <p className="text-xs text-graphite-muted">D is dimensionless. Each fit is ln(measure) on ln(scale) over the scaling range shown.</p>
       </section>
       {plots.length > 0 && (

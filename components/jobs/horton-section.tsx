@@ -2,6 +2,7 @@
 // the ratios with their intervals, the per-order table, and the per-order plots with the fitted lines.
 import { ScalingPlot, type PlotLine } from "@/components/charts/scaling-plot";
 import { formatCi, formatNumber } from "@/components/jobs/numbers";
+import { DataTable, type Column } from "@/components/ui/data-table";
 
 export interface RatioEvidence {
   value: number;
@@ -36,6 +37,39 @@ const RATIOS = [
   { key: "slope", symbol: <>R<sub>S</sub></>, name: "slope ratio", law: <>S̄<sub>ω</sub> = S̄<sub>1</sub> R<sub>S</sub><sup>1−ω</sup></> },
 ] as const;
 
+type Ratio = (typeof RATIOS)[number];
+const R2 = <span className="normal-case">R²</span>;
+
+function ratioColumns(ratios: Record<Ratio["key"], RatioEvidence | null>, level: string): Column<Ratio>[] {
+  const of = (r: Ratio) => ratios[r.key];
+  return [
+    {
+      key: "ratio",
+      header: "Ratio",
+      className: "whitespace-nowrap",
+      cell: (r) => (
+        <>
+          <span className="font-medium">{r.symbol}</span> <span className="text-graphite-muted">{r.name}</span>
+        </>
+      ),
+    },
+    { key: "value", header: "Value", className: "font-medium", cell: (r) => <span data-ratio={r.key}>{of(r) === null ? "—" : formatNumber(of(r)!.value, 4)}</span> },
+    { key: "ci", header: level, className: "whitespace-nowrap", cell: (r) => (of(r) === null ? "—" : formatCi(of(r)!.ci)) },
+    { key: "se", header: "Std. error", cell: (r) => (of(r) === null ? "—" : formatNumber(of(r)!.stdError)) },
+    { key: "r2", header: R2, cell: (r) => (of(r) === null ? "—" : formatNumber(of(r)!.rSquared, 4)) },
+    { key: "orders", header: "Orders fitted", cell: (r) => (of(r) === null ? "too few orders" : of(r)!.ordersUsed.join(", ")) },
+    { key: "law", header: "Law", className: "whitespace-nowrap text-graphite-muted", cell: (r) => r.law },
+  ];
+}
+
+const ORDER_COLUMNS: Column<OrderRow>[] = [
+  { key: "order", header: <>Strahler order <span className="normal-case">ω</span></>, cell: (r) => r.order },
+  { key: "streams", header: <>Streams <span className="normal-case">N<sub>ω</sub></span></>, cell: (r) => r.streams },
+  { key: "length", header: <>Mean length <span className="normal-case">(m)</span></>, cell: (r) => formatNumber(r.meanLengthM, 4) },
+  { key: "area", header: <>Mean area <span className="normal-case">(km²)</span></>, cell: (r) => (r.meanAreaKm2 === null ? "—" : formatNumber(r.meanAreaKm2, 4)) },
+  { key: "slope", header: <>Mean slope <span className="normal-case">(m/m)</span></>, cell: (r) => (r.meanSlope === null ? "—" : formatNumber(r.meanSlope, 3)) },
+];
+
 /** The least-squares line of ln y on ω passes through the mean of the used points; its slope is ±ln R. */
 function lineThrough(rows: { x: number; y: number }[], used: number[], slope: number): PlotLine | undefined {
   const pts = rows.filter((r) => used.includes(r.x) && r.y > 0);
@@ -55,63 +89,8 @@ export function HortonSection({ rows, confidence, ...ratios }: HortonSectionProp
   return (
     <section aria-labelledby="horton-heading" className="flex flex-col gap-3">
       <h2 id="horton-heading">Horton&apos;s laws</h2>
-      <div className="card overflow-x-auto">
-        <table className="table-dense" aria-label="Horton ratios">
-          <thead>
-            <tr>
-              <th scope="col">Ratio</th>
-              <th scope="col">Value</th>
-              <th scope="col">{level}</th>
-              <th scope="col">Std. error</th>
-              <th scope="col"><span className="normal-case">R²</span></th>
-              <th scope="col">Orders fitted</th>
-              <th scope="col">Law</th>
-            </tr>
-          </thead>
-          <tbody>
-            {RATIOS.map((r) => {
-              const e = ratios[r.key];
-              return (
-                <tr key={r.key}>
-                  <td className="whitespace-nowrap">
-                    <span className="font-medium">{r.symbol}</span> <span className="text-graphite-muted">{r.name}</span>
-                  </td>
-                  <td className="font-medium" data-ratio={r.key}>{e === null ? "—" : formatNumber(e.value, 4)}</td>
-                  <td className="whitespace-nowrap">{e === null ? "—" : formatCi(e.ci)}</td>
-                  <td>{e === null ? "—" : formatNumber(e.stdError)}</td>
-                  <td>{e === null ? "—" : formatNumber(e.rSquared, 4)}</td>
-                  <td>{e === null ? "too few orders" : e.ordersUsed.join(", ")}</td>
-                  <td className="whitespace-nowrap text-graphite-muted">{r.law}</td>
-                </tr>
-              );
-            })}
-          </tbody>
-        </table>
-      </div>
-      <div className="card overflow-x-auto">
-        <table className="table-dense" aria-label="Per-order table">
-          <thead>
-            <tr>
-              <th scope="col">Strahler order <span className="normal-case">ω</span></th>
-              <th scope="col">Streams <span className="normal-case">N<sub>ω</sub></span></th>
-              <th scope="col">Mean length <span className="normal-case">(m)</span></th>
-              <th scope="col">Mean area <span className="normal-case">(km²)</span></th>
-              <th scope="col">Mean slope <span className="normal-case">(m/m)</span></th>
-            </tr>
-          </thead>
-          <tbody>
-            {rows.map((r) => (
-              <tr key={r.order}>
-                <td>{r.order}</td>
-                <td>{r.streams}</td>
-                <td>{formatNumber(r.meanLengthM, 4)}</td>
-                <td>{r.meanAreaKm2 === null ? "—" : formatNumber(r.meanAreaKm2, 4)}</td>
-                <td>{r.meanSlope === null ? "—" : formatNumber(r.meanSlope, 3)}</td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </div>
+      <DataTable label="Horton ratios" columns={ratioColumns(ratios, level)} rows={RATIOS} rowKey={(r) => r.key} utcCaption={false} />
+      <DataTable label="Per-order table" columns={ORDER_COLUMNS} rows={rows} rowKey={(r) => String(r.order)} utcCaption={false} />
       <div className="grid gap-3 md:grid-cols-2 xl:grid-cols-3">
         {plots.map((p) => {
           const points = rows.map((r) => ({ x: r.order, y: p.value(r), used: p.ratio?.ordersUsed.includes(r.order) ?? false }));

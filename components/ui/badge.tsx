@@ -17,3 +17,16 @@ export function Badge({ tone = "neutral", children }: { tone?: BadgeTone; childr
     </span>
   );
 }
+
+/** Identifiers (scopes, event names) as a wrapping row of monospace badges. */
+export function CodeBadges({ values, className = "" }: { values: readonly string[]; className?: string }) {
+  return (
+    <div className={`flex flex-wrap gap-1 ${className}`}>
+      {values.map((v) => (
+        <Badge key={v}>
+          <span className="font-mono">{v}</span>
+        </Badge>
+      ))}
+    </div>
+  );
+}

@@ -1,4 +1,5 @@
 import { Fragment, type HTMLAttributes, type ReactNode } from "react";
+import { formatInstant } from "@/components/format/instant";
 import { UtcCaption } from "@/components/ui/utc-caption";
 
 export interface Column<T> {
@@ -75,5 +76,26 @@ export function DataTable<T>({ label, columns, rows, rowKey, empty, rowProps, ex
         </tbody>
       </table>
     </div>
+  );
+}
+
+/** The last column of a table with row actions: a header only screen readers read, buttons at the right. */
+export function actionsColumn<T>(actions: (row: T) => ReactNode, header = "Actions"): Column<T> {
+  return {
+    key: "actions",
+    header,
+    headerHidden: true,
+    className: "whitespace-nowrap text-right",
+    cell: (row) => <div className="flex justify-end gap-1.5">{actions(row)}</div>,
+  };
+}
+
+/** A cell with an instant and, under it, who caused it (uploaded by, submitted by). */
+export function InstantBy({ at, by }: { at: string; by: string }) {
+  return (
+    <>
+      {formatInstant(at, false)}
+      <span className="block text-xs text-graphite-muted">{by}</span>
+    </>
   );
 }

@@ -9,9 +9,9 @@ import { formatInstant, formatInstantPrecise } from "@/components/format/instant
 import { Alert } from "@/components/ui/alert";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
+import { DataTable, type Column } from "@/components/ui/data-table";
 import { TextField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
-import { UtcCaption } from "@/components/ui/utc-caption";
 
 const PAGE_SIZE = 50;
 
@@ -146,51 +146,14 @@ export function AuditPanel() {
       {page.error !== null && !forbidden && <Alert>{describeProblem(page.error)}</Alert>}
       {page.data !== undefined && (
         <>
-          <div className="card overflow-x-auto">
-            <table className="table-dense" aria-label="Audit entries" aria-busy={page.isFetching}>
-              <UtcCaption />
-              <thead>
-                <tr>
-                  <th scope="col">Time</th>
-                  <th scope="col">Action</th>
-                  <th scope="col">Actor</th>
-                  <th scope="col">Target</th>
-                  <th scope="col">IP</th>
-                  <th scope="col">Details</th>
-                </tr>
-              </thead>
-              <tbody>
-                {page.data.items.length === 0 && (
-                  <tr>
-                    <td colSpan={6} className="py-6 text-center text-graphite-muted">
-                      No entries match.
-                    </td>
-                  </tr>
-                )}
-                {page.data.items.map((event) => (
-                  <tr key={event.id}>
-                    <td className="whitespace-nowrap" title={event.at}>
-                      {formatInstantPrecise(event.at, false)}
-                    </td>
-                    <td>
-                      <Badge tone={/fail|refus|denied/.test(event.action) ? "bad" : "neutral"}>
-                        <span className="font-mono">{event.action}</span>
-                      </Badge>
-                    </td>
-                    <td>
-                      <span className="block whitespace-nowrap">{event.actor.label}</span>
-                      <span className="text-xs text-graphite-muted">{event.actor.kind.replace("_", " ")}</span>
-                    </td>
-                    <td className="max-w-[10rem] truncate font-mono text-xs" title={event.target ?? undefined}>
-                      {event.target ?? "—"}
-                    </td>
-                    <td className="whitespace-nowrap font-mono text-xs">{event.ip ?? "—"}</td>
-                    <DetailsCell details={event.details} />
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable
+            label="Audit entries"
+            columns={AUDIT_COLUMNS}
+            rows={page.data.items}
+            rowKey={(event) => String(event.id)}
+            empty="No entries match."
+            busy={page.isFetching}
+          />
           <nav aria-label="Audit pages" className="mt-3 flex items-center justify-between text-dense text-graphite-muted">
             <span>
               Page {cursors.length}
@@ -220,18 +183,48 @@ export function AuditPanel() {
   );
 }
 
-// One line per detail, wrapped rather than cut: details are what an auditor reads the row for.
-function DetailsCell({ details }: { details: Record<string, unknown> }) {
-  const entries = Object.entries(details);
-  if (entries.length === 0) return <td className="text-graphite-muted">—</td>;
-  return (
-    <td className="min-w-[14rem] max-w-[22rem] font-mono text-xs text-graphite-soft">
-      {entries.map(([k, v]) => (
+const AUDIT_COLUMNS: Column<AuditEventBody>[] = [
+  { key: "time", header: "Time", className: "whitespace-nowrap", cell: (event) => <span title={event.at}>{formatInstantPrecise(event.at, false)}</span> },
+  {
+    key: "action",
+    header: "Action",
+    cell: (event) => (
+      <Badge tone={/fail|refus|denied/.test(event.action) ? "bad" : "neutral"}>
+        <span className="font-mono">{event.action}</span>
+      </Badge>
+    ),
+  },
+  {
+    key: "actor",
+    header: "Actor",
+    cell: (event) => (
+      <>
+        <span className="block whitespace-nowrap">{event.actor.label}</span>
+        <span className="text-xs text-graphite-muted">{event.actor.kind.replace("_", " ")}</span>
+      </>
+    ),
+  },
+  {
+    key: "target",
+    header: "Target",
+    className: "max-w-[10rem] truncate font-mono text-xs",
+    cell: (event) => <span title={event.target ?? undefined}>{event.target ?? "—"}</span>,
+  },
+  { key: "ip", header: "IP", className: "whitespace-nowrap font-mono text-xs", cell: (event) => event.ip ?? "—" },
+  // One line per detail, wrapped rather than cut: details are what an auditor reads the row for.
+  {
+    key: "details",
+    header: "Details",
+    className: (event) => (Object.keys(event.details).length === 0 ? "text-graphite-muted" : "min-w-[14rem] max-w-[22rem] font-mono text-xs text-graphite-soft"),
+    cell: (event) => {
+      const entries = Object.entries(event.details);
+      if (entries.length === 0) return "—";
+      return entries.map(([k, v]) => (
         <span key={k} className="block break-words">
           <span className="text-graphite-muted">{k}=</span>
           {typeof v === "string" ? v : JSON.stringify(v)}
         </span>
-      ))}
-    </td>
-  );
-}
+      ));
+    },
+  },
+];

@@ -23,14 +23,53 @@ import type { DatasetBody } from "@/components/jobs/bodies";
 import { ProgressBar } from "@/components/jobs/job-status";
 import { Alert } from "@/components/ui/alert";
 import { Badge } from "@/components/ui/badge";
-import { Button } from "@/components/ui/button";
+import { Button, LINK_BUTTON_CLASS } from "@/components/ui/button";
 import { ConfirmDialog } from "@/components/ui/confirm-dialog";
+import { DataTable, InstantBy, actionsColumn, type Column } from "@/components/ui/data-table";
 import { Dialog } from "@/components/ui/dialog";
 import { TextField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
-import { UtcCaption } from "@/components/ui/utc-caption";
 
 type Open = { kind: "details"; dataset: DatasetBody } | { kind: "delete"; dataset: DatasetBody } | null;
+
+function datasetColumns({ write, analyse, setOpen }: { write: boolean; analyse: boolean; setOpen: (o: Open) => void }): Column<DatasetBody>[] {
+  return [
+    {
+      key: "name",
+      header: "Name",
+      className: "min-w-[8rem] font-medium",
+      cell: (d) => (
+        <>
+          <span className="break-all">{d.name}</span>
+          <span className="block text-xs font-normal text-graphite-muted">{describeExtent(d.metadata)}</span>
+        </>
+      ),
+    },
+    { key: "kind", header: "Kind", className: "whitespace-nowrap", cell: (d) => FORMAT_LABELS[d.format] },
+    { key: "crs", header: "CRS", className: "whitespace-nowrap", cell: (d) => <span title={crsName(d.metadata)}>{describeCrs(d.metadata)}</span> },
+    { key: "size", header: "Size", className: "whitespace-nowrap", cell: (d) => formatBytes(d.sizeBytes) },
+    { key: "cell", header: "Cell size", className: "whitespace-nowrap", cell: (d) => describeCellSize(d.metadata) },
+    { key: "bbox", header: "Bounding box (lon/lat)", className: "whitespace-nowrap font-mono text-xs", cell: (d) => <BboxCell metadata={d.metadata} /> },
+    { key: "uploaded", header: "Uploaded", className: "whitespace-nowrap", cell: (d) => <InstantBy at={d.createdAt} by={d.createdBy.label} /> },
+    actionsColumn((d) => (
+      <>
+        <Button size="sm" aria-label={`Details of ${d.name}`} onClick={() => setOpen({ kind: "details", dataset: d })}>
+          Details
+        </Button>
+        {analyse && (
+          <Link href={`/jobs?dataset=${encodeURIComponent(d.id)}`} aria-label={`Analyse ${d.name}`} className={LINK_BUTTON_CLASS}>
+            Analyse
+          </Link>
+        )}
+        {write && (
+          <Button size="sm" aria-label={`Delete ${d.name}`} onClick={() => setOpen({ kind: "delete", dataset: d })}>
+            Delete
+          </Button>
+        )}
+      </>
+    )),
+  ];
+}
 
 export function DatasetsPanel() {
   const { data: me } = useMe();
@@ -39,7 +78,6 @@ export function DatasetsPanel() {
   const pages = useDatasetPages();
   const [open, setOpen] = useState<Open>(null);
   const items = pages.data?.pages.flatMap((p) => p.items) ?? [];
-  const columns = 8;
 
   return (
     <>
@@ -56,76 +94,7 @@ export function DatasetsPanel() {
       )}
       {pages.error !== null && <Alert>{describeProblem(pages.error)}</Alert>}
       {pages.data !== undefined && (
-        <div className="card overflow-x-auto">
-          <table className="table-dense" aria-label="Datasets">
-            <UtcCaption />
-            <thead>
-              <tr>
-                <th scope="col">Name</th>
-                <th scope="col">Kind</th>
-                <th scope="col">CRS</th>
-                <th scope="col">Size</th>
-                <th scope="col">Cell size</th>
-                <th scope="col">Bounding box (lon/lat)</th>
-                <th scope="col">Uploaded</th>
-                <th scope="col">
-                  <span className="sr-only">Actions</span>
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {items.length === 0 && (
-                <tr>
-                  <td colSpan={columns} className="py-6 text-center text-graphite-muted">
-                    No datasets yet.
-                  </td>
-                </tr>
-              )}
-              {items.map((d) => (
-                <tr key={d.id}>
-                  <td className="min-w-[8rem] font-medium">
-                    <span className="break-all">{d.name}</span>
-                    <span className="block text-xs font-normal text-graphite-muted">{describeExtent(d.metadata)}</span>
-                  </td>
-                  <td className="whitespace-nowrap">{FORMAT_LABELS[d.format]}</td>
-                  <td className="whitespace-nowrap" title={crsName(d.metadata)}>
-                    {describeCrs(d.metadata)}
-                  </td>
-                  <td className="whitespace-nowrap">{formatBytes(d.sizeBytes)}</td>
-                  <td className="whitespace-nowrap">{describeCellSize(d.metadata)}</td>
-                  <td className="whitespace-nowrap font-mono text-xs">
-                    <BboxCell metadata={d.metadata} />
-                  </td>
-                  <td className="whitespace-nowrap">
-                    {formatInstant(d.createdAt, false)}
-                    <span className="block text-xs text-graphite-muted">{d.createdBy.label}</span>
-                  </td>
-                  <td className="whitespace-nowrap text-right">
-                    <div className="flex justify-end gap-1.5">
-                      <Button size="sm" aria-label={`Details of ${d.name}`} onClick={() => setOpen({ kind: "details", dataset: d })}>
-                        Details
-                      </Button>
-                      {analyse && (
-                        <Link
-                          href={`/jobs?dataset=${encodeURIComponent(d.id)}`}
-                          aria-label={`Analyse ${d.name}`}
-                          className="inline-flex items-center rounded border border-paper-edge bg-white px-2 py-1 text-xs font-medium text-graphite hover:bg-paper-sunk hover:no-underline"
-                        >
-                          Analyse
-                        </Link>
-                      )}
-                      {write && (
-                        <Button size="sm" aria-label={`Delete ${d.name}`} onClick={() => setOpen({ kind: "delete", dataset: d })}>
-                          Delete
-                        </Button>
-                      )}
-                    </div>
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable label="Datasets" columns={datasetColumns({ write, analyse, setOpen })} rows={items} rowKey={(d) => d.id} empty="No datasets yet." />
       )}
       {pages.isPending && <p className="text-graphite-muted">Loading datasets…</p>}
       {pages.hasNextPage && (

@@ -6,7 +6,6 @@ import { useState } from "react";
 import { api, describeProblem } from "@/components/data/api";
 import { allows, useMe } from "@/components/data/use-me";
 import { useRecentDatasets } from "@/components/datasets/use-datasets";
-import { formatInstant } from "@/components/format/instant";
 import { JOBS_QUERY_KEY, isLive, type JobBody, type JobKind, type Page } from "@/components/jobs/bodies";
 import type { KindEntry } from "@/components/jobs/kind-catalog";
 import { KIND_LABELS } from "@/components/jobs/kind-label";
@@ -14,9 +13,9 @@ import { JobStatusBadge, ProgressBar, formatDuration } from "@/components/jobs/j
 import { NewJobForm } from "@/components/jobs/new-job-form";
 import { Alert } from "@/components/ui/alert";
 import { Button } from "@/components/ui/button";
+import { DataTable, InstantBy, type Column } from "@/components/ui/data-table";
 import { SelectField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
-import { UtcCaption } from "@/components/ui/utc-caption";
 
 /** How often the table refreshes while any listed job is queued or running. */
 const LIVE_REFRESH_MS = 1000;
@@ -36,6 +35,50 @@ export interface JobsPanelProps {
   catalog: KindEntry[];
   initialDataset?: string;
   initialStatus?: string;
+}
+
+function jobColumns(datasetNames: ReadonlyMap<string, string>): Column<JobBody>[] {
+  return [
+    {
+      key: "kind",
+      header: "Kind",
+      className: "whitespace-nowrap font-medium",
+      cell: (j) => (
+        <>
+          <Link href={`/jobs/${j.id}`} aria-label={`${KIND_LABELS[j.kind]} job ${j.id.slice(0, 8)}`}>
+            {KIND_LABELS[j.kind]}
+          </Link>
+          <span className="block font-mono text-xs font-normal text-graphite-muted">{j.id.slice(0, 8)}</span>
+        </>
+      ),
+    },
+    {
+      key: "dataset",
+      header: "Dataset",
+      className: "max-w-[16rem] break-all",
+      cell: (j) =>
+        j.dataset === null ? (
+          <span className="text-graphite-muted">deleted</span>
+        ) : (
+          (datasetNames.get(j.dataset) ?? <span className="font-mono text-xs">{j.dataset.slice(0, 8)}</span>)
+        ),
+    },
+    {
+      key: "status",
+      header: "Status",
+      className: "whitespace-nowrap",
+      cell: (j) => (
+        <>
+          <JobStatusBadge job={j} />
+          {j.cachedFrom !== null && <span className="block text-xs text-graphite-muted">reused result</span>}
+        </>
+      ),
+    },
+    { key: "stage", header: "Stage", className: "whitespace-nowrap", cell: (j) => j.stage ?? "—" },
+    { key: "progress", header: "Progress", cell: (j) => <ProgressBar value={j.progress} label={`Progress of job ${j.id.slice(0, 8)}`} /> },
+    { key: "created", header: "Created", className: "whitespace-nowrap", cell: (j) => <InstantBy at={j.createdAt} by={j.submittedBy.label} /> },
+    { key: "duration", header: "Duration", className: "whitespace-nowrap", cell: (j) => formatDuration(j.durationS) },
+  ];
 }
 
 export function JobsPanel({ catalog, initialDataset, initialStatus }: JobsPanelProps) {
@@ -109,57 +152,14 @@ export function JobsPanel({ catalog, initialDataset, initialStatus }: JobsPanelP
       </div>
       {jobs.error !== null && <Alert>{describeProblem(jobs.error)}</Alert>}
       {jobs.data !== undefined && (
-        <div className="card overflow-x-auto">
-          <table className="table-dense" aria-label="Jobs">
-            <UtcCaption />
-            <thead>
-              <tr>
-                <th scope="col">Kind</th>
-                <th scope="col">Dataset</th>
-                <th scope="col">Status</th>
-                <th scope="col">Stage</th>
-                <th scope="col">Progress</th>
-                <th scope="col">Created</th>
-                <th scope="col">Duration</th>
-              </tr>
-            </thead>
-            <tbody>
-              {items.length === 0 && (
-                <tr>
-                  <td colSpan={7} className="py-6 text-center text-graphite-muted">
-                    {status === "" && kind === "" ? "No jobs yet." : "No job matches these filters."}
-                  </td>
-                </tr>
-              )}
-              {items.map((j) => (
-                <tr key={j.id} data-job-id={j.id}>
-                  <td className="whitespace-nowrap font-medium">
-                    <Link href={`/jobs/${j.id}`} aria-label={`${KIND_LABELS[j.kind]} job ${j.id.slice(0, 8)}`}>
-                      {KIND_LABELS[j.kind]}
-                    </Link>
-                    <span className="block font-mono text-xs font-normal text-graphite-muted">{j.id.slice(0, 8)}</span>
-                  </td>
-                  <td className="max-w-[16rem] break-all">
-                    {j.dataset === null ? <span className="text-graphite-muted">deleted</span> : (datasetNames.get(j.dataset) ?? <span className="font-mono text-xs">{j.dataset.slice(0, 8)}</span>)}
-                  </td>
-                  <td className="whitespace-nowrap" data-cell="status">
-                    <JobStatusBadge job={j} />
-                    {j.cachedFrom !== null && <span className="block text-xs text-graphite-muted">reused result</span>}
-                  </td>
-                  <td className="whitespace-nowrap">{j.stage ?? "—"}</td>
-                  <td>
-                    <ProgressBar value={j.progress} label={`Progress of job ${j.id.slice(0, 8)}`} />
-                  </td>
-                  <td className="whitespace-nowrap">
-                    {formatInstant(j.createdAt, false)}
-                    <span className="block text-xs text-graphite-muted">{j.submittedBy.label}</span>
-                  </td>
-                  <td className="whitespace-nowrap">{formatDuration(j.durationS)}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Jobs"
+          columns={jobColumns(datasetNames)}
+          rows={items}
+          rowKey={(j) => j.id}
+          rowProps={(j) => ({ "data-job-id": j.id })}
+          empty={status === "" && kind === "" ? "No jobs yet." : "No job matches these filters."}
+        />
       )}
       {jobs.isPending && <p className="text-graphite-muted">Loading jobs…</p>}
       {jobs.hasNextPage && (

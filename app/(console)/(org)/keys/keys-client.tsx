@@ -7,22 +7,22 @@ import {
   ApiKeyRotateBody,
   type ApiKeyBody,
   type ApiKeyCreateInput,
-  type z,
 } from "@/lib/api/schemas";
 import { SCOPES, type Scope } from "@/lib/auth/permissions";
 import { ApiProblem, api, describeProblem } from "@/components/data/api";
 import { allows, useMe } from "@/components/data/use-me";
+import { ConfirmMutation } from "@/components/forms/confirm-mutation";
 import { checkWith, fieldErrorsOfProblem, type FieldErrors } from "@/components/forms/field-errors";
+import { RotateSecretDialog } from "@/components/forms/rotate-secret-dialog";
 import { formatInstant } from "@/components/format/instant";
 import { Alert } from "@/components/ui/alert";
-import { Badge, type BadgeTone } from "@/components/ui/badge";
+import { Badge, CodeBadges, type BadgeTone } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
-import { ConfirmDialog } from "@/components/ui/confirm-dialog";
-import { CopyButton } from "@/components/ui/copy-button";
+import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
 import { Dialog } from "@/components/ui/dialog";
 import { CheckboxGroup, TextField } from "@/components/ui/field";
+import { OneTimeSecret } from "@/components/ui/one-time-secret";
 import { PageHeader } from "@/components/ui/page-header";
-import { UtcCaption } from "@/components/ui/utc-caption";
 
 const KEYS_QUERY_KEY = ["keys"] as const;
 const DEFAULT_GRACE_HOURS = 24;
@@ -52,13 +52,55 @@ function keyStatus(key: ApiKeyBody, now: number): { tone: BadgeTone; text: strin
   return { tone: "good", text: "Active" };
 }
 
+const KEY_COLUMNS: Column<ApiKeyBody>[] = [
+  { key: "name", header: "Name", className: "min-w-[8rem] font-medium", cell: (key) => key.name },
+  { key: "prefix", header: "Key", className: "whitespace-nowrap font-mono text-xs", cell: (key) => `${key.prefix}…` },
+  {
+    key: "scopes",
+    header: "Scopes",
+    cell: (key) => <CodeBadges values={key.scopes} className="min-w-[11rem] max-w-[15rem]" />,
+  },
+  { key: "created", header: "Created", className: "whitespace-nowrap", cell: (key) => formatInstant(key.createdAt, false) },
+  { key: "expires", header: "Expires", className: "whitespace-nowrap", cell: (key) => (key.expiresAt === null ? "never" : formatInstant(key.expiresAt, false)) },
+  { key: "used", header: "Last used", className: "whitespace-nowrap", cell: (key) => (key.lastUsedAt === null ? "never" : formatInstant(key.lastUsedAt, false)) },
+  {
+    key: "status",
+    header: "Status",
+    className: "max-w-[11rem]",
+    cell: (key) => {
+      const status = keyStatus(key, Date.now());
+      return (
+        <>
+          <Badge tone={status.tone}>{status.text}</Badge>
+          {status.note !== undefined && <span className="mt-0.5 block text-xs text-graphite-muted">{status.note}</span>}
+        </>
+      );
+    },
+  },
+];
+
+function keyActions(onRotate: (key: ApiKeyBody) => void, onRevoke: (key: ApiKeyBody) => void): Column<ApiKeyBody> {
+  return actionsColumn(
+    (key) =>
+      key.revokedAt === null && (
+        <>
+          <Button size="sm" aria-label={`Rotate ${key.name}`} onClick={() => onRotate(key)}>
+            Rotate
+          </Button>
+          <Button size="sm" aria-label={`Revoke ${key.name}`} onClick={() => onRevoke(key)}>
+            Revoke
+          </Button>
+        </>
+      ),
+  );
+}
+
 export function KeysPanel() {
   const { data: me } = useMe();
   const manage = allows(me, "keys:manage");
   const keys = useQuery({ queryKey: KEYS_QUERY_KEY, queryFn: () => api<{ items: ApiKeyBody[] }>("/keys") });
   const [open, setOpen] = useState<Open>(null);
   const forbidden = keys.error instanceof ApiProblem && keys.error.status === 403;
-  const now = Date.now();
 
   return (
     <>
@@ -80,76 +122,14 @@ export function KeysPanel() {
       )}
       {keys.error !== null && !forbidden && <Alert>{describeProblem(keys.error)}</Alert>}
       {keys.data !== undefined && (
-        <div className="card overflow-x-auto">
-          <table className="table-dense" aria-label="API keys">
-            <UtcCaption />
-            <thead>
-              <tr>
-                <th scope="col">Name</th>
-                <th scope="col">Key</th>
-                <th scope="col">Scopes</th>
-                <th scope="col">Created</th>
-                <th scope="col">Expires</th>
-                <th scope="col">Last used</th>
-                <th scope="col">Status</th>
-                {manage && (
-                  <th scope="col">
-                    <span className="sr-only">Actions</span>
-                  </th>
-                )}
-              </tr>
-            </thead>
-            <tbody>
-              {keys.data.items.length === 0 && (
-                <tr>
-                  <td colSpan={manage ? 8 : 7} className="py-6 text-center text-graphite-muted">
-                    No keys yet.
-                  </td>
-                </tr>
-              )}
-              {keys.data.items.map((key) => {
-                const status = keyStatus(key, now);
-                const live = key.revokedAt === null;
-                return (
-                  <tr key={key.id} className={live ? undefined : "text-graphite-muted"}>
-                    <td className="min-w-[8rem] font-medium">{key.name}</td>
-                    <td className="whitespace-nowrap font-mono text-xs">{key.prefix}…</td>
-                    <td>
-                      <div className="flex min-w-[11rem] max-w-[15rem] flex-wrap gap-1">
-                        {key.scopes.map((s) => (
-                          <Badge key={s}>
-                            <span className="font-mono">{s}</span>
-                          </Badge>
-                        ))}
-                      </div>
-                    </td>
-                    <td className="whitespace-nowrap">{formatInstant(key.createdAt, false)}</td>
-                    <td className="whitespace-nowrap">{key.expiresAt === null ? "never" : formatInstant(key.expiresAt, false)}</td>
-                    <td className="whitespace-nowrap">{key.lastUsedAt === null ? "never" : formatInstant(key.lastUsedAt, false)}</td>
-                    <td className="max-w-[11rem]">
-                      <Badge tone={status.tone}>{status.text}</Badge>
-                      {status.note !== undefined && <span className="mt-0.5 block text-xs text-graphite-muted">{status.note}</span>}
-                    </td>
-                    {manage && (
-                      <td className="whitespace-nowrap text-right">
-                        {live && (
-                          <div className="flex justify-end gap-1.5">
-                            <Button size="sm" aria-label={`Rotate ${key.name}`} onClick={() => setOpen({ kind: "rotate", key })}>
-                              Rotate
-                            </Button>
-                            <Button size="sm" aria-label={`Revoke ${key.name}`} onClick={() => setOpen({ kind: "revoke", key })}>
-                              Revoke
-                            </Button>
-                          </div>
-                        )}
-                      </td>
-                    )}
-                  </tr>
-                );
-              })}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="API keys"
+          columns={manage ? [...KEY_COLUMNS, keyActions((key) => setOpen({ kind: "rotate", key }), (key) => setOpen({ kind: "revoke", key }))] : KEY_COLUMNS}
+          rows={keys.data.items}
+          rowKey={(key) => key.id}
+          rowProps={(key) => ({ className: key.revokedAt === null ? undefined : "text-graphite-muted" })}
+          empty="No keys yet."
+        />
       )}
       {keys.isPending && !forbidden && <p className="text-graphite-muted">Loading keys…</p>}
 
@@ -281,24 +261,7 @@ function SecretDialog({
         </Button>
       }
     >
-      <Alert tone="warning">
-        Copy the secret now. It is shown only once: Rillscale keeps a hash of it, not the secret.
-      </Alert>
-      <div>
-        <label className="label" htmlFor="new-key-secret">
-          Secret
-        </label>
-        <div className="flex items-center gap-2">
-          <input
-            id="new-key-secret"
-            readOnly
-            value={secret}
-            className="input font-mono text-xs"
-            onFocus={(e) => e.target.select()}
-          />
-          <CopyButton text={secret} label="Copy secret" />
-        </div>
-      </div>
+      <OneTimeSecret secret={secret} warning="Copy the secret now. It is shown only once: Rillscale keeps a hash of it, not the secret." />
       {rotated && apiKey.graceUntil !== null && (
         <p className="text-graphite-muted">
           The previous secret keeps working until {formatInstant(apiKey.graceUntil)}, so running scripts can switch
@@ -318,78 +281,39 @@ function RotateKeyDialog({
   onClose: () => void;
   onRotated: (key: ApiKeyBody, secret: string) => void;
 }) {
-  const queryClient = useQueryClient();
-  const [graceHours, setGraceHours] = useState(String(DEFAULT_GRACE_HOURS));
-  const [errors, setErrors] = useState<FieldErrors>({});
-  const rotate = useMutation({
-    mutationFn: (body: z.infer<typeof ApiKeyRotateBody>) =>
-      api<{ key: ApiKeyBody; secret: string }>(`/keys/${encodeURIComponent(apiKey.id)}/rotate`, { method: "POST", body }),
-    onSuccess: (result) => {
-      void queryClient.invalidateQueries({ queryKey: KEYS_QUERY_KEY });
-      onRotated(result.key, result.secret);
-    },
-    onError: (error) => setErrors(fieldErrorsOfProblem(error)),
-  });
-
-  function confirm() {
-    const checked = checkWith(ApiKeyRotateBody, { graceHours: graceHours === "" ? undefined : Number(graceHours) });
-    setErrors(checked.ok ? {} : checked.errors);
-    if (checked.ok) rotate.mutate(checked.data);
-  }
-
   return (
-    <ConfirmDialog
-      open
+    <RotateSecretDialog<{ key: ApiKeyBody; secret: string }>
       title={`Rotate “${apiKey.name}”?`}
       confirmLabel="Rotate key"
-      tone="primary"
-      pending={rotate.isPending}
-      error={Object.keys(errors).length > 0 ? null : rotate.error}
-      onConfirm={confirm}
+      path={`/keys/${encodeURIComponent(apiKey.id)}/rotate`}
+      schema={ApiKeyRotateBody}
+      hours={{ field: "graceHours", label: "Grace period (hours)", hint: "0 refuses the current secret at once.", initial: DEFAULT_GRACE_HOURS }}
+      invalidates={KEYS_QUERY_KEY}
+      onRotated={(r) => onRotated(r.key, r.secret)}
       onClose={onClose}
     >
       <p>
         A new secret replaces the current one. The current secret keeps working during the grace period, then it is
         refused. The org&apos;s admins are e-mailed.
       </p>
-      <TextField
-        label="Grace period (hours)"
-        type="number"
-        min={0}
-        step={1}
-        inputMode="numeric"
-        value={graceHours}
-        onChange={(e) => setGraceHours(e.target.value)}
-        hint="0 refuses the current secret at once."
-        error={errors.graceHours}
-      />
-    </ConfirmDialog>
+    </RotateSecretDialog>
   );
 }
 
 function RevokeKeyDialog({ apiKey, onClose }: { apiKey: ApiKeyBody; onClose: () => void }) {
-  const queryClient = useQueryClient();
-  const revoke = useMutation({
-    mutationFn: () => api<{ key: ApiKeyBody }>(`/keys/${encodeURIComponent(apiKey.id)}/revoke`, { method: "POST" }),
-    onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: KEYS_QUERY_KEY });
-      onClose();
-    },
-  });
   return (
-    <ConfirmDialog
-      open
+    <ConfirmMutation
       title={`Revoke “${apiKey.name}”?`}
       confirmLabel="Revoke key"
-      pending={revoke.isPending}
-      error={revoke.error}
-      onConfirm={() => revoke.mutate()}
+      run={() => api<{ key: ApiKeyBody }>(`/keys/${encodeURIComponent(apiKey.id)}/revoke`, { method: "POST" })}
+      invalidates={KEYS_QUERY_KEY}
+      onDone={onClose}
       onClose={onClose}
     >
       <p>
         Every request with this key, including a secret still in its grace period, is refused from now on. This cannot be
         undone; scripts need a new key.
       </p>
-    </ConfirmDialog>
+    </ConfirmMutation>
   );
 }

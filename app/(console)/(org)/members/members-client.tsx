@@ -6,15 +6,15 @@ import { InvitationCreateBody, type InvitationBody, type MemberBody, type z } fr
 import { ROLES, type Role } from "@/lib/auth/permissions";
 import { ApiProblem, api, describeProblem } from "@/components/data/api";
 import { allows, useMe } from "@/components/data/use-me";
+import { ConfirmMutation } from "@/components/forms/confirm-mutation";
 import { checkWith, fieldErrorsOfProblem, type FieldErrors } from "@/components/forms/field-errors";
 import { formatInstant } from "@/components/format/instant";
 import { Alert } from "@/components/ui/alert";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
-import { ConfirmDialog } from "@/components/ui/confirm-dialog";
+import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
 import { SelectField, TextField } from "@/components/ui/field";
 import { PageHeader } from "@/components/ui/page-header";
-import { UtcCaption } from "@/components/ui/utc-caption";
 
 const MEMBERS_QUERY_KEY = ["members"] as const;
 const INVITATIONS_QUERY_KEY = ["invitations"] as const;
@@ -27,6 +27,60 @@ const ROLE_WORDS: Record<Role, string> = {
 const ROLE_OPTIONS = ROLES.map((r) => ({ value: r, label: r }));
 
 type Pending = { kind: "role"; member: MemberBody; role: Role } | { kind: "remove"; member: MemberBody } | null;
+
+const INVITATION_COLUMNS: Column<InvitationBody>[] = [
+  { key: "email", header: "E-mail", cell: (inv) => inv.email },
+  { key: "role", header: "Role", cell: (inv) => inv.role },
+  { key: "sent", header: "Sent", className: "whitespace-nowrap", cell: (inv) => formatInstant(inv.createdAt, false) },
+  { key: "expires", header: "Link expires", className: "whitespace-nowrap", cell: (inv) => formatInstant(inv.expiresAt, false) },
+];
+
+function memberColumns(selfId: string | undefined, manage: boolean, setPending: (p: Pending) => void): Column<MemberBody>[] {
+  const columns: Column<MemberBody>[] = [
+    {
+      key: "name",
+      header: "Name",
+      className: "font-medium",
+      cell: (member) => (
+        <>
+          {member.name} {member.userId === selfId && <Badge>you</Badge>}
+        </>
+      ),
+    },
+    { key: "email", header: "E-mail", cell: (member) => member.email },
+    {
+      key: "role",
+      header: "Role",
+      cell: (member) =>
+        manage ? (
+          <select
+            aria-label={`Role of ${member.email}`}
+            className="input w-32 py-0.5 text-dense"
+            value={member.role}
+            onChange={(e) => setPending({ kind: "role", member, role: e.target.value as Role })}
+          >
+            {ROLES.map((r) => (
+              <option key={r} value={r}>
+                {r}
+              </option>
+            ))}
+          </select>
+        ) : (
+          member.role
+        ),
+    },
+    { key: "joined", header: "Joined", className: "whitespace-nowrap", cell: (member) => formatInstant(member.joinedAt, false) },
+  ];
+  if (!manage) return columns;
+  return [
+    ...columns,
+    actionsColumn((member) => (
+      <Button size="sm" aria-label={`Remove ${member.email}`} onClick={() => setPending({ kind: "remove", member })}>
+        Remove
+      </Button>
+    )),
+  ];
+}
 
 export function MembersPanel() {
   const { data: me } = useMe();
@@ -51,92 +105,14 @@ export function MembersPanel() {
       {manage && <InviteForm />}
       {members.error !== null && !forbidden && <Alert>{describeProblem(members.error)}</Alert>}
       {members.data !== undefined && (
-        <div className="card overflow-x-auto">
-          <table className="table-dense" aria-label="Members">
-            <UtcCaption />
-            <thead>
-              <tr>
-                <th scope="col">Name</th>
-                <th scope="col">E-mail</th>
-                <th scope="col">Role</th>
-                <th scope="col">Joined</th>
-                {manage && (
-                  <th scope="col">
-                    <span className="sr-only">Actions</span>
-                  </th>
-                )}
-              </tr>
-            </thead>
-            <tbody>
-              {members.data.items.map((member) => {
-                const self = member.userId === me?.user?.id;
-                return (
-                  <tr key={member.userId}>
-                    <td className="font-medium">
-                      {member.name} {self && <Badge>you</Badge>}
-                    </td>
-                    <td>{member.email}</td>
-                    <td>
-                      {manage ? (
-                        <select
-                          aria-label={`Role of ${member.email}`}
-                          className="input w-32 py-0.5 text-dense"
-                          value={member.role}
-                          onChange={(e) => setPending({ kind: "role", member, role: e.target.value as Role })}
-                        >
-                          {ROLES.map((r) => (
-                            <option key={r} value={r}>
-                              {r}
-                            </option>
-                          ))}
-                        </select>
-                      ) : (
-                        member.role
-                      )}
-                    </td>
-                    <td className="whitespace-nowrap">{formatInstant(member.joinedAt, false)}</td>
-                    {manage && (
-                      <td className="text-right">
-                        <Button size="sm" aria-label={`Remove ${member.email}`} onClick={() => setPending({ kind: "remove", member })}>
-                          Remove
-                        </Button>
-                      </td>
-                    )}
-                  </tr>
-                );
-              })}
-            </tbody>
-          </table>
-        </div>
+        <DataTable label="Members" columns={memberColumns(me?.user?.id, manage, setPending)} rows={members.data.items} rowKey={(m) => m.userId} />
       )}
       {manage && invitations.data !== undefined && invitations.data.items.length > 0 && (
         <section className="mt-6" aria-labelledby="pending-heading">
           <h2 id="pending-heading" className="mb-2">
             Pending invitations
           </h2>
-          <div className="card overflow-x-auto">
-            <table className="table-dense" aria-label="Pending invitations">
-              <UtcCaption />
-              <thead>
-                <tr>
-                  <th scope="col">E-mail</th>
-                  <th scope="col">Role</th>
-                  <th scope="col">Sent</th>
-                  <th scope="col">Link expires</th>
-                </tr>
-              </thead>
-              <tbody>
-                {invitations.data.items.map((inv) => (
-                  <tr key={inv.id}>
-                    <td>{inv.email}</td>
-                    <td>{inv.role}</td>
-                    <td className="whitespace-nowrap">{formatInstant(inv.createdAt, false)}</td>
-                    <td className="whitespace-nowrap">{formatInstant(inv.expiresAt, false)}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable label="Pending invitations" columns={INVITATION_COLUMNS} rows={invitations.data.items} rowKey={(inv) => inv.id} />
         </section>
       )}
       {pending?.kind === "role" && (
@@ -204,55 +180,36 @@ function InviteForm() {
 }
 
 function ChangeRoleDialog({ member, role, onClose }: { member: MemberBody; role: Role; onClose: () => void }) {
-  const queryClient = useQueryClient();
-  const change = useMutation({
-    mutationFn: () =>
-      api<MemberBody>(`/members/${encodeURIComponent(member.userId)}`, { method: "PATCH", body: { role } }),
-    onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: MEMBERS_QUERY_KEY });
-      onClose();
-    },
-  });
   return (
-    <ConfirmDialog
-      open
+    <ConfirmMutation
       title={`Change the role of ${member.name} to ${role}?`}
       confirmLabel="Change role"
       tone="primary"
-      pending={change.isPending}
-      error={change.error}
-      onConfirm={() => change.mutate()}
+      run={() => api<MemberBody>(`/members/${encodeURIComponent(member.userId)}`, { method: "PATCH", body: { role } })}
+      invalidates={MEMBERS_QUERY_KEY}
+      onDone={onClose}
       onClose={onClose}
     >
       <p>
         {member.email} is {member.role} now. New role: {ROLE_WORDS[role]}.
       </p>
-    </ConfirmDialog>
+    </ConfirmMutation>
   );
 }
 
 function RemoveMemberDialog({ member, onClose }: { member: MemberBody; onClose: () => void }) {
-  const queryClient = useQueryClient();
-  const remove = useMutation({
-    mutationFn: () => api<void>(`/members/${encodeURIComponent(member.userId)}`, { method: "DELETE" }),
-    onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: MEMBERS_QUERY_KEY });
-      onClose();
-    },
-  });
   return (
-    <ConfirmDialog
-      open
+    <ConfirmMutation
       title={`Remove ${member.name}?`}
       confirmLabel="Remove member"
-      pending={remove.isPending}
-      error={remove.error}
-      onConfirm={() => remove.mutate()}
+      run={() => api<void>(`/members/${encodeURIComponent(member.userId)}`, { method: "DELETE" })}
+      invalidates={MEMBERS_QUERY_KEY}
+      onDone={onClose}
       onClose={onClose}
     >
       <p>
         {member.email} loses access to this organisation at once. Their past actions stay in the audit log.
       </p>
-    </ConfirmDialog>
+    </ConfirmMutation>
   );
 }

@@ -1,16 +1,16 @@
 "use client";
 
-import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
 import type { z } from "@/lib/api/schemas";
 import type { SigningKey, SigningKeyRotation } from "@/lib/provenance/schemas";
 import { api, describeProblem } from "@/components/data/api";
 import { allows, useMe } from "@/components/data/use-me";
+import { ConfirmMutation } from "@/components/forms/confirm-mutation";
 import { formatInstant } from "@/components/format/instant";
 import { Alert } from "@/components/ui/alert";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
-import { ConfirmDialog } from "@/components/ui/confirm-dialog";
 import { DataTable, type Column } from "@/components/ui/data-table";
 import { PageHeader } from "@/components/ui/page-header";
 
@@ -89,29 +89,20 @@ export function SigningKeysPanel() {
 }
 
 function RotateDialog({ onClose }: { onClose: (rotated?: Rotation) => void }) {
-  const queryClient = useQueryClient();
-  const rotate = useMutation({
-    mutationFn: () => api<Rotation>("/signing-keys/rotate", { method: "POST" }),
-    onSuccess: (r) => {
-      void queryClient.invalidateQueries({ queryKey: SIGNING_KEYS_QUERY_KEY });
-      onClose(r);
-    },
-  });
   return (
-    <ConfirmDialog
-      open
+    <ConfirmMutation
       title="Rotate the signing key now?"
       confirmLabel="Rotate signing key"
       tone="primary"
-      pending={rotate.isPending}
-      error={rotate.error}
-      onConfirm={() => rotate.mutate()}
+      run={() => api<Rotation>("/signing-keys/rotate", { method: "POST" })}
+      invalidates={SIGNING_KEYS_QUERY_KEY}
+      onDone={onClose}
       onClose={() => onClose()}
     >
       <p>
         A new key signs every document from now on. The active key retires: its private half is destroyed, its public half stays
         published so its documents keep verifying. The rotation is written to the audit log.
       </p>
-    </ConfirmDialog>
+    </ConfirmMutation>
   );
 }

@@ -14,13 +14,14 @@ import {
 } from "@/lib/webhooks/schemas";
 import { api, describeProblem } from "@/components/data/api";
 import { allows, useMe } from "@/components/data/use-me";
+import { ConfirmMutation } from "@/components/forms/confirm-mutation";
 import { checkWith, fieldErrorsOfProblem, type FieldErrors } from "@/components/forms/field-errors";
+import { RotateSecretDialog } from "@/components/forms/rotate-secret-dialog";
 import { formatInstant, formatInstantPrecise } from "@/components/format/instant";
 import { Alert } from "@/components/ui/alert";
-import { Badge, type BadgeTone } from "@/components/ui/badge";
+import { Badge, CodeBadges, type BadgeTone } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
-import { ConfirmDialog } from "@/components/ui/confirm-dialog";
-import { DataTable, type Column } from "@/components/ui/data-table";
+import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
 import { Dialog } from "@/components/ui/dialog";
 import { CheckboxGroup, TextField } from "@/components/ui/field";
 import { OneTimeSecret } from "@/components/ui/one-time-secret";
@@ -92,15 +93,7 @@ export function WebhooksPanel() {
     {
       key: "events",
       header: "Events",
-      cell: (e) => (
-        <div className="flex min-w-[8rem] flex-wrap gap-1">
-          {e.events.map((ev) => (
-            <Badge key={ev}>
-              <span className="font-mono">{ev}</span>
-            </Badge>
-          ))}
-        </div>
-      ),
+      cell: (e) => <CodeBadges values={e.events} className="min-w-[8rem]" />,
     },
     {
       key: "status",
@@ -119,28 +112,22 @@ export function WebhooksPanel() {
       ),
     },
     { key: "created", header: "Created", className: "whitespace-nowrap", cell: (e) => formatInstant(e.createdAt, false) },
-    {
-      key: "actions",
-      header: "Actions",
-      headerHidden: true,
-      className: "whitespace-nowrap text-right",
-      cell: (e) => (
-        <div className="flex justify-end gap-1.5">
-          <Button size="sm" aria-label={`Deliveries to ${e.url}`} aria-pressed={logOf === e.id} onClick={() => setLogOf(logOf === e.id ? null : e.id)}>
-            Deliveries
-          </Button>
-          <Button size="sm" aria-label={`Rotate the secret of ${e.url}`} onClick={() => setOpen({ kind: "rotate", endpoint: e })}>
-            Rotate secret
-          </Button>
-          <Button size="sm" aria-label={`${e.enabled ? "Disable" : "Enable"} ${e.url}`} disabled={toggle.isPending} onClick={() => toggle.mutate(e)}>
-            {e.enabled ? "Disable" : "Enable"}
-          </Button>
-          <Button size="sm" aria-label={`Delete ${e.url}`} onClick={() => setOpen({ kind: "delete", endpoint: e })}>
-            Delete
-          </Button>
-        </div>
-      ),
-    },
+    actionsColumn((e) => (
+      <>
+        <Button size="sm" aria-label={`Deliveries to ${e.url}`} aria-pressed={logOf === e.id} onClick={() => setLogOf(logOf === e.id ? null : e.id)}>
+          Deliveries
+        </Button>
+        <Button size="sm" aria-label={`Rotate the secret of ${e.url}`} onClick={() => setOpen({ kind: "rotate", endpoint: e })}>
+          Rotate secret
+        </Button>
+        <Button size="sm" aria-label={`${e.enabled ? "Disable" : "Enable"} ${e.url}`} disabled={toggle.isPending} onClick={() => toggle.mutate(e)}>
+          {e.enabled ? "Disable" : "Enable"}
+        </Button>
+        <Button size="sm" aria-label={`Delete ${e.url}`} onClick={() => setOpen({ kind: "delete", endpoint: e })}>
+          Delete
+        </Button>
+      </>
+    )),
   ];
   const shown = endpoints.data?.items.find((e) => e.id === logOf);
 
@@ -272,34 +259,15 @@ function SecretDialog({ endpoint, secret, rotated, onClose }: { endpoint: Endpoi
 }
 
 function RotateDialog({ endpoint, onClose, onRotated }: { endpoint: Endpoint; onClose: () => void; onRotated: (endpoint: Endpoint, secret: string) => void }) {
-  const queryClient = useQueryClient();
-  const [hours, setHours] = useState(String(DEFAULT_OVERLAP_HOURS));
-  const [errors, setErrors] = useState<FieldErrors>({});
-  const rotate = useMutation({
-    mutationFn: (body: z.infer<typeof WebhookRotateBody>) =>
-      api<{ endpoint: Endpoint; secret: string }>(`/webhooks/${endpoint.id}/rotate-secret`, { method: "POST", body }),
-    onSuccess: (r) => {
-      void queryClient.invalidateQueries({ queryKey: WEBHOOKS_QUERY_KEY });
-      onRotated(r.endpoint, r.secret);
-    },
-    onError: (error) => setErrors(fieldErrorsOfProblem(error)),
-  });
-
-  function confirm() {
-    const checked = checkWith(WebhookRotateBody, { overlapHours: hours === "" ? undefined : Number(hours) });
-    setErrors(checked.ok ? {} : checked.errors);
-    if (checked.ok) rotate.mutate(checked.data);
-  }
-
   return (
-    <ConfirmDialog
-      open
+    <RotateSecretDialog<{ endpoint: Endpoint; secret: string }>
       title="Rotate the signing secret?"
       confirmLabel="Rotate secret"
-      tone="primary"
-      pending={rotate.isPending}
-      error={Object.keys(errors).length > 0 ? null : rotate.error}
-      onConfirm={confirm}
+      path={`/webhooks/${endpoint.id}/rotate-secret`}
+      schema={WebhookRotateBody}
+      hours={{ field: "overlapHours", label: "Overlap (hours)", hint: "0 stops signing with the previous secret at once.", initial: DEFAULT_OVERLAP_HOURS }}
+      invalidates={WEBHOOKS_QUERY_KEY}
+      onRotated={(r) => onRotated(r.endpoint, r.secret)}
       onClose={onClose}
     >
       <p className="break-all font-mono text-xs">{endpoint.url}</p>
@@ -308,43 +276,23 @@ function RotateDialog({ endpoint, onClose, onRotated }: { endpoint: Endpoint; on
         the new secret&apos;s and the previous one&apos;s, so a receiver still holding the old secret keeps accepting deliveries
         until it is updated.
       </p>
-      <TextField
-        label="Overlap (hours)"
-        type="number"
-        min={0}
-        step={1}
-        inputMode="numeric"
-        value={hours}
-        onChange={(e) => setHours(e.target.value)}
-        hint="0 stops signing with the previous secret at once."
-        error={errors.overlapHours}
-      />
-    </ConfirmDialog>
+    </RotateSecretDialog>
   );
 }
 
 function DeleteDialog({ endpoint, onClose }: { endpoint: Endpoint; onClose: (deleted: boolean) => void }) {
-  const queryClient = useQueryClient();
-  const remove = useMutation({
-    mutationFn: () => api<void>(`/webhooks/${endpoint.id}`, { method: "DELETE" }),
-    onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: WEBHOOKS_QUERY_KEY });
-      onClose(true);
-    },
-  });
   return (
-    <ConfirmDialog
-      open
+    <ConfirmMutation
       title="Delete this endpoint?"
       confirmLabel="Delete endpoint"
-      pending={remove.isPending}
-      error={remove.error}
-      onConfirm={() => remove.mutate()}
+      run={() => api<void>(`/webhooks/${endpoint.id}`, { method: "DELETE" })}
+      invalidates={WEBHOOKS_QUERY_KEY}
+      onDone={() => onClose(true)}
       onClose={() => onClose(false)}
     >
       <p className="break-all font-mono text-xs">{endpoint.url}</p>
       <p>No more deliveries are sent to it, and its delivery log is deleted with it. This cannot be undone.</p>
-    </ConfirmDialog>
+    </ConfirmMutation>
   );
 }
 
@@ -388,22 +336,16 @@ function DeliveryLog({ endpoint }: { endpoint: Endpoint }) {
         </>
       ),
     },
-    {
-      key: "actions",
-      header: "Actions",
-      headerHidden: true,
-      className: "whitespace-nowrap text-right",
-      cell: (d) => (
-        <div className="flex justify-end gap-1.5">
-          <Button size="sm" aria-expanded={openAttempts === d.id} onClick={() => setOpenAttempts(openAttempts === d.id ? null : d.id)}>
-            {openAttempts === d.id ? "Hide attempts" : "Attempts"}
-          </Button>
-          <Button size="sm" disabled={!endpoint.enabled || redeliver.isPending} onClick={() => redeliver.mutate(d)}>
-            Redeliver
-          </Button>
-        </div>
-      ),
-    },
+    actionsColumn((d) => (
+      <>
+        <Button size="sm" aria-expanded={openAttempts === d.id} onClick={() => setOpenAttempts(openAttempts === d.id ? null : d.id)}>
+          {openAttempts === d.id ? "Hide attempts" : "Attempts"}
+        </Button>
+        <Button size="sm" disabled={!endpoint.enabled || redeliver.isPending} onClick={() => redeliver.mutate(d)}>
+          Redeliver
+        </Button>
+      </>
+    )),
   ];
 
   return (

@@ -7,8 +7,8 @@ import { ApiProblem, api, describeProblem } from "@/components/data/api";
 import { formatInstantPrecise } from "@/components/format/instant";
 import { Alert } from "@/components/ui/alert";
 import { Button } from "@/components/ui/button";
+import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
 import { PageHeader } from "@/components/ui/page-header";
-import { UtcCaption } from "@/components/ui/utc-caption";
 
 // Links in caught mail (invitations, resets) become clickable so a developer can follow a flow end to end.
 const URL_PATTERN = /(https?:\/\/[^\s<>"]+)/g;
@@ -38,6 +38,19 @@ export function DevMailPanel() {
   });
   const [openId, setOpenId] = useState<string | null>(null);
   const forbidden = mail.error instanceof ApiProblem && (mail.error.status === 403 || mail.error.status === 404);
+  const columns: Column<DevMailBody>[] = [
+    { key: "received", header: "Received", className: "whitespace-nowrap", cell: (m) => formatInstantPrecise(m.receivedAt, false) },
+    { key: "to", header: "To", cell: (m) => m.to.join(", ") },
+    { key: "subject", header: "Subject", className: "font-medium", cell: (m) => m.subject },
+    actionsColumn(
+      (m) => (
+        <Button size="sm" aria-expanded={openId === m.id} aria-controls={`mail-${m.id}`} onClick={() => setOpenId(openId === m.id ? null : m.id)}>
+          {openId === m.id ? "Hide" : "Read"}
+        </Button>
+      ),
+      "Open",
+    ),
+  ];
 
   return (
     <>
@@ -49,58 +62,20 @@ export function DevMailPanel() {
       {forbidden && <Alert tone="info">Caught mail is for org admins on a development server.</Alert>}
       {mail.error !== null && !forbidden && <Alert>{describeProblem(mail.error)}</Alert>}
       {mail.data !== undefined && (
-        <div className="card overflow-x-auto">
-          <table className="table-dense" aria-label="Caught mail">
-            <UtcCaption />
-            <thead>
-              <tr>
-                <th scope="col">Received</th>
-                <th scope="col">To</th>
-                <th scope="col">Subject</th>
-                <th scope="col">
-                  <span className="sr-only">Open</span>
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {mail.data.items.length === 0 && (
-                <tr>
-                  <td colSpan={4} className="py-6 text-center text-graphite-muted">
-                    No mail caught yet.
-                  </td>
-                </tr>
-              )}
-              {mail.data.items.map((m) => (
-                <Fragment key={m.id}>
-                  <tr>
-                    <td className="whitespace-nowrap">{formatInstantPrecise(m.receivedAt, false)}</td>
-                    <td>{m.to.join(", ")}</td>
-                    <td className="font-medium">{m.subject}</td>
-                    <td className="text-right">
-                      <Button
-                        size="sm"
-                        aria-expanded={openId === m.id}
-                        aria-controls={`mail-${m.id}`}
-                        onClick={() => setOpenId(openId === m.id ? null : m.id)}
-                      >
-                        {openId === m.id ? "Hide" : "Read"}
-                      </Button>
-                    </td>
-                  </tr>
-                  {openId === m.id && (
-                    <tr id={`mail-${m.id}`}>
-                      <td colSpan={4} className="bg-paper-sunk">
-                        <pre className="whitespace-pre-wrap font-mono text-xs leading-relaxed">
-                          <Linked text={m.text} />
-                        </pre>
-                      </td>
-                    </tr>
-                  )}
-                </Fragment>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Caught mail"
+          columns={columns}
+          rows={mail.data.items}
+          rowKey={(m) => m.id}
+          empty="No mail caught yet."
+          expansion={(m) =>
+            openId === m.id ? (
+              <pre id={`mail-${m.id}`} className="whitespace-pre-wrap font-mono text-xs leading-relaxed">
+                <Linked text={m.text} />
+              </pre>
+            ) : null
+          }
+        />
       )}
       {mail.isPending && <p className="text-graphite-muted">Loading mail…</p>}
     </>

@@ -24,7 +24,8 @@ import { KIND_LABELS } from "@/components/jobs/kind-label";
 import { NetworkResult } from "@/components/jobs/network-result";
 import { ProvenanceSection } from "@/components/jobs/provenance-section";
 import { Alert } from "@/components/ui/alert";
-import { Button } from "@/components/ui/button";
+import { Button, LINK_BUTTON_CLASS } from "@/components/ui/button";
+import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
 import { PageHeader } from "@/components/ui/page-header";
 
 /** How often the page refreshes while the job is queued or running. */
@@ -203,54 +204,26 @@ function ResultView({ result }: { result: JobResultBody }) {
   );
 }
 
+const ARTIFACT_COLUMNS: Column<ArtifactBody>[] = [
+  { key: "file", header: "File", className: "font-mono text-xs", cell: (a) => a.name },
+  { key: "type", header: "Type", className: "font-mono text-xs text-graphite-muted", cell: (a) => a.mediaType },
+  { key: "size", header: "Size", className: "whitespace-nowrap", cell: (a) => formatBytes(a.sizeBytes) },
+  { key: "sha256", header: "SHA-256", className: "font-mono text-xs text-graphite-muted", cell: (a) => <span title={a.sha256}>{a.sha256.slice(0, 16)}…</span> },
+  actionsColumn(
+    (a) => (
+      <a href={a.href} download={a.name} aria-label={`Download ${a.name}`} className={LINK_BUTTON_CLASS}>
+        Download
+      </a>
+    ),
+    "Download",
+  ),
+];
+
 function Downloads({ artifacts }: { artifacts: ArtifactBody[] }) {
   return (
     <section aria-labelledby="downloads-heading" className="flex flex-col gap-2">
       <h2 id="downloads-heading">Downloads</h2>
-      <div className="card overflow-x-auto">
-        <table className="table-dense" aria-label="Artifacts">
-          <thead>
-            <tr>
-              <th scope="col">File</th>
-              <th scope="col">Type</th>
-              <th scope="col">Size</th>
-              <th scope="col">SHA-256</th>
-              <th scope="col">
-                <span className="sr-only">Download</span>
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {artifacts.length === 0 && (
-              <tr>
-                <td colSpan={5} className="py-4 text-center text-graphite-muted">
-                  This job wrote no files.
-                </td>
-              </tr>
-            )}
-            {artifacts.map((a) => (
-              <tr key={a.name}>
-                <td className="font-mono text-xs">{a.name}</td>
-                <td className="font-mono text-xs text-graphite-muted">{a.mediaType}</td>
-                <td className="whitespace-nowrap">{formatBytes(a.sizeBytes)}</td>
-                <td className="font-mono text-xs text-graphite-muted" title={a.sha256}>
-                  {a.sha256.slice(0, 16)}…
-                </td>
-                <td className="text-right">
-                  <a
-                    href={a.href}
-                    download={a.name}
-                    aria-label={`Download ${a.name}`}
-                    className="inline-flex items-center rounded border border-paper-edge bg-white px-2 py-1 text-xs font-medium text-graphite hover:bg-paper-sunk hover:no-underline"
-                  >
-                    Download
-                  </a>
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </div>
+      <DataTable label="Artifacts" columns={ARTIFACT_COLUMNS} rows={artifacts} rowKey={(a) => a.name} empty="This job wrote no files." utcCaption={false} />
     </section>
   );
 }
