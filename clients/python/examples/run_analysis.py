@@ -9,8 +9,11 @@ import json
 import os
 import sys
 
-sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-from rillscale import Client, order_table, write_csv  # noqa: E402
+try:
+    from rillscale import Client, order_table, write_csv
+except ImportError:  # run from a checkout without `pip install ./clients/python`
+    sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
+    from rillscale import Client, order_table, write_csv
 
 
 def main(argv=None) -> int:

@@ -2,12 +2,16 @@
 run.py): upload, idempotent submit, wait, result tables, artifact downloads with their hashes."""
 import csv
 import hashlib
+import json
 import os
+import re
+import shutil
 import subprocess
 import sys
 import tempfile
 import unittest
 import uuid
+from urllib.request import Request, urlopen
 
 from rillscale import ApiError, Client, order_table, write_csv
 
@@ -16,10 +20,23 @@ ROOT = os.path.abspath(os.path.join(HERE, "..", "..", ".."))
 DEM = os.path.join(ROOT, "tests", "fixtures", "cache", "debian", "elev.tif")
 # Luxembourg's 95 × 90 DEM at 30″ covers about 2 600 km²; a 5 km² initiation area gives a few orders.
 PARAMS = {"channelThreshold": {"method": "area", "km2": 5}}
+EXAMPLE = os.path.join(HERE, "..", "examples", "run_analysis.py")
+# summary.horton.table's keys (units in their suffixes: M metres, Km2 square kilometres, slope m/m) → CSV columns
+CSV_COLUMNS = {"order": "order", "streamCount": "stream_count", "meanLengthM": "mean_length_m",
+               "meanAreaKm2": "mean_area_km2", "meanSlope": "mean_slope_m_per_m"}
+# the example's on_status lines: "  <status> <stage> <percent> %"
+STATUS_LINE = re.compile(r"^  (queued|running|succeeded|failed|cancelled) (\S*) +(\d+) %$")
 
 
 def client() -> Client:
     return Client(os.environ["RILLSCALE_TEST_URL"], os.environ["RILLSCALE_TEST_KEY"])
+
+
+def raw_get(path: str):
+    """A JSON GET with plain urllib, not the client: the independent side of a comparison."""
+    req = Request(os.environ["RILLSCALE_TEST_URL"] + path, headers={"authorization": "Bearer " + os.environ["RILLSCALE_TEST_KEY"]})
+    with urlopen(req, timeout=60) as res:
+        return json.loads(res.read().decode("utf-8"))
 
 
 def sha256_of(path: str) -> str:
@@ -96,20 +113,51 @@ class Against_the_server(unittest.TestCase):
             self.c.job(str(uuid.uuid4()))
         self.assertEqual(e.exception.status, 404)
 
-    def test_the_example_script_runs_end_to_end_and_its_table_matches_the_result(self):
+    def test_the_example_script_runs_a_fresh_job_end_to_end_and_its_csv_matches_the_raw_result(self):
         with tempfile.TemporaryDirectory() as d:
+            # the server keys datasets and cached results by the bytes' SHA-256: a copy with 16 fresh bytes after
+            # the TIFF's data (readers go by the IFD offsets) is a dataset no earlier run has, so the job computes
+            dem = os.path.join(d, "fresh.tif")
+            shutil.copyfile(DEM, dem)
+            with open(dem, "ab") as f:
+                f.write(uuid.uuid4().bytes)
+            out = os.path.join(d, "out")
             env = dict(os.environ, RILLSCALE_URL=os.environ["RILLSCALE_TEST_URL"], RILLSCALE_API_KEY=os.environ["RILLSCALE_TEST_KEY"])
-            run = subprocess.run([sys.executable, os.path.join(HERE, "..", "examples", "run_analysis.py"), DEM, "--out", d, "--threshold-km2", "5"],
+            run = subprocess.run([sys.executable, EXAMPLE, dem, "--out", out, "--threshold-km2", str(PARAMS["channelThreshold"]["km2"])],
                                  env=env, capture_output=True, text=True, timeout=600)
             self.assertEqual(run.returncode, 0, run.stderr[-2000:])
-            import json
             last = json.loads(run.stdout.strip().splitlines()[-1])
-            # same dataset bytes, kind and parameters: the server answers from its result cache, same table
-            result = self.c.result(last["job"])
-            same_table(self, read_csv(os.path.join(d, "orders.csv")), result)
-            self.assertEqual(order_table(result), order_table(self.result))
-            self.assertTrue(all(os.path.exists(p) for p in last["artifacts"]))
+            job, raw = raw_get("/api/v1/jobs/" + last["job"]), raw_get("/api/v1/jobs/%s/result" % last["job"])
 
+            # a run of its own, not the result cache: no cachedFrom, started by a worker, stage timings recorded
+            self.assertIsNone(job["cachedFrom"])
+            self.assertIsNone(raw["cachedFrom"])
+            self.assertEqual(job["status"], "succeeded")
+            self.assertGreaterEqual(job["attempts"], 1)
+            self.assertGreater(len(raw["timingsS"]), 0)
+            # the script polled while it ran: a status before the end, and the last one succeeded at 100 %
+            seen = [m.groups() for m in (STATUS_LINE.match(l) for l in run.stderr.splitlines()) if m]
+            self.assertIn(seen[0][0], ("queued", "running"), run.stderr[-2000:])
+            self.assertEqual((seen[-1][0], seen[-1][2]), ("succeeded", "100"))
+
+            table = sorted(raw["summary"]["horton"]["table"], key=lambda r: r["order"])
+            self.assertGreater(len(table), 1)
+            with open(os.path.join(out, "orders.csv"), newline="", encoding="utf-8") as f:
+                reader = csv.DictReader(f)
+                self.assertEqual(reader.fieldnames, list(CSV_COLUMNS.values()))
+                rows = list(reader)
+            self.assertEqual([int(r["order"]) for r in rows], [t["order"] for t in table])
+            for row, want in zip(rows, table):
+                for key, column in CSV_COLUMNS.items():
+                    v = want[key]
+                    got = None if row[column] == "" else int(row[column]) if isinstance(v, int) else float(row[column])
+                    self.assertEqual(got, v, "order %s %s" % (want["order"], column))
+            with open(os.path.join(out, "result.json"), encoding="utf-8") as f:
+                self.assertEqual(json.load(f), raw)
+            # the same raster and parameters computed afresh give the table the earlier job computed
+            self.assertEqual(table, sorted(self.result["summary"]["horton"]["table"], key=lambda r: r["order"]))
+            self.assertTrue(all(os.path.exists(p) for p in last["artifacts"]))
+            self.assertGreater(len(last["artifacts"]), 0)
 
 if __name__ == "__main__":
     unittest.main()
