@@ -172,10 +172,25 @@ export function withPublic(handler: (c: RequestContext) => Promise<Response>): R
 }
 
 export async function parseJson<S extends z.ZodType>(req: Request, schema: S): Promise<z.infer<S>> {
-  const length = Number(req.headers.get("content-length") ?? 0);
-  if (length > MAX_JSON_BYTES) throw new ApiError("payload-too-large", `JSON bodies are limited to ${MAX_JSON_BYTES} bytes.`);
-  const text = await req.text();
-  if (Buffer.byteLength(text) > MAX_JSON_BYTES) throw new ApiError("payload-too-large", `JSON bodies are limited to ${MAX_JSON_BYTES} bytes.`);
+  const tooLarge = () => new ApiError("payload-too-large", `JSON bodies are limited to ${MAX_JSON_BYTES} bytes.`);
+  if (Number(req.headers.get("content-length") ?? 0) > MAX_JSON_BYTES) throw tooLarge();
+  // A chunked body has no declared length: count bytes as they arrive and stop reading at the cap.
+  const chunks: Uint8Array[] = [];
+  let bytes = 0;
+  if (req.body) {
+    const reader = req.body.getReader();
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) break;
+      bytes += value.byteLength;
+      if (bytes > MAX_JSON_BYTES) {
+        await reader.cancel().catch(() => {});
+        throw tooLarge();
+      }
+      chunks.push(value);
+    }
+  }
+  const text = Buffer.concat(chunks).toString("utf8");
   const type = req.headers.get("content-type") ?? "";
   if (text.length > 0 && !/^application\/([\w.+-]*\+)?json\b/i.test(type)) throw new ApiError("unsupported-media-type", "Send the body as application/json.");
   let value: unknown = {};
