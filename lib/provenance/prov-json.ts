@@ -1,8 +1,10 @@
 // W3C PROV-JSON (Huynh, Jewell, Sezavar Keshavarz, Michaelides, Yang & Moreau 2013, W3C Member Submission) of
 // one finished job, in the terms of PROV-DM (Moreau & Missier 2013, W3C Recommendation): entities for the
 // input, the parameters and each artifact; the job as an activity; the software, the organisation and the
-// submitter as agents; and the relations between them. Pure: every fact comes in through ProvJobFacts.
+// submitter as agents; the relations between them; and, on the activity, the methods that ran with their papers.
+// Pure: every fact comes in through ProvJobFacts.
 import { canonicalJson, sha256Hex } from "@/lib/jobs/canonical-json";
+import type { MethodCitation } from "@/lib/provenance/methods";
 
 export const PROV_NAMESPACES = {
   prov: "http://www.w3.org/ns/prov#",
@@ -38,11 +40,6 @@ export interface ProvFileFacts {
   sizeBytes: number;
 }
 
-export interface MethodCitation {
-  name: string;
-  citation: string;
-}
-
 export interface ProvJobFacts {
   job: {
     id: string;
@@ -61,8 +58,13 @@ export interface ProvJobFacts {
   software: { name: string; version: string; gitCommit: string | null };
   org: { id: string; name: string };
   submitter: { kind: "user" | "api_key"; id: string; label: string };
+  /** The methods that produced the numbers, in the order they ran (lib/provenance/methods.ts methodsOf). */
   methods: readonly MethodCitation[];
 }
+
+/** One method as the document writes it: its name, then each paper as "Authors (year), reference". */
+export const citationText = (m: MethodCitation): string =>
+  `${m.name} — ${m.papers.map((p) => `${p.authors} (${p.year}), ${p.reference}`).join("; ")}`;
 
 const dateTime = (d: Date): TypedLiteral => ({ $: d.toISOString(), type: "xsd:dateTime" });
 // PROV-DM's own times (prov:startTime, prov:endTime, prov:time) are written as plain xsd:dateTime strings, as
@@ -116,7 +118,7 @@ export function buildProvDocument(f: ProvJobFacts): ProvDocument {
   if (f.job.workerHost) activity["rill:workerHost"] = f.job.workerHost;
   if (f.job.cachedFrom) activity["rill:reusedResultOf"] = qname(`rill:job-${f.job.cachedFrom}`);
   f.methods.forEach((m, i) => {
-    activity[`rill:method${i + 1}`] = `${m.name} — ${m.citation}`;
+    activity[`rill:method${i + 1}`] = citationText(m);
   });
 
   const software: ProvRecord = { "prov:type": qname("prov:SoftwareAgent"), "prov:label": f.software.name, "rill:version": f.software.version };

@@ -4,10 +4,11 @@ import { createHash } from "node:crypto";
 import { and, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { datasets, jobProvenance, jobResults, jobs, organisations, type JobProvenanceRow } from "@/db/schema";
+import { isJobKind } from "@/lib/jobs/kinds";
 import { SOFTWARE } from "@/lib/jobs/software";
 import { signDetached } from "@/lib/provenance/detached-jws";
 import { activeSigningKey } from "@/lib/provenance/keys";
-import { METHODS_OF_KIND } from "@/lib/provenance/methods";
+import { geographicInput, methodsOf } from "@/lib/provenance/methods";
 import { buildProvDocument, provDocumentBytes, type ProvJobFacts } from "@/lib/provenance/prov-json";
 
 export class ProvenanceUnavailableError extends Error {
@@ -27,6 +28,8 @@ export async function jobFacts(db: Db, jobId: string, gitCommit: string | null):
   if (!row || row.job.status !== "succeeded") throw new ProvenanceUnavailableError(`job ${jobId} has no result to describe`);
   const { job, result, org } = row;
   if (!job.datasetId) throw new ProvenanceUnavailableError(`the dataset of job ${jobId} was deleted`);
+  const { kind } = job;
+  if (!isJobKind(kind)) throw new ProvenanceUnavailableError(`job ${jobId} is of an unknown kind ${kind}`);
   const [dataset] = await db.select().from(datasets).where(eq(datasets.id, job.datasetId));
   const finishedAt = job.finishedAt ?? job.updatedAt;
   return {
@@ -43,7 +46,7 @@ export async function jobFacts(db: Db, jobId: string, gitCommit: string | null):
       kind: job.submittedBy.kind === "user" ? "user" : "api_key",
       id: job.submittedBy.id ?? "unknown", label: job.submittedBy.label,
     },
-    methods: METHODS_OF_KIND[job.kind] ?? [],
+    methods: methodsOf(kind, job.params, { geographic: geographicInput(kind, result.summary) }),
   };
 }
 

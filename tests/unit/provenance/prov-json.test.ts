@@ -3,6 +3,7 @@ import Ajv from "ajv";
 import addFormats from "ajv-formats";
 import { describe, expect, it } from "vitest";
 import { canonicalJson, sha256Hex } from "@/lib/jobs/canonical-json";
+import { methodsOf } from "@/lib/provenance/methods";
 import { buildProvDocument, filesOfDocument, provDocumentBytes, type ProvDocument } from "@/lib/provenance/prov-json";
 import { FACTS } from "@/tests/unit/provenance/fixtures";
 
@@ -63,6 +64,19 @@ describe("buildProvDocument()", () => {
     expect(job["rill:cacheReuse"]).toBe(true);
     expect(job["prov:startTime"]).toBe("2026-12-01T10:00:00.000Z");
     expect(String(job["rill:method1"])).toContain("Barnes, Lehman & Mulla (2014)");
+  });
+
+  it("writes each method that ran as rill:method1…n, name then papers, and no more (lib/provenance/methods.ts; Barnes, Lehman & Mulla 2014 from lib/hydro/priority-flood.ts)", () => {
+    const job = (facts: typeof FACTS) => buildProvDocument(facts).activity[`rill:job-${facts.job.id}`];
+    const methodKeys = (r: Record<string, unknown>) => Object.keys(r).filter((k) => k.startsWith("rill:method")).sort();
+    const plain = job(FACTS);
+    expect(methodKeys(plain)).toEqual(FACTS.methods.map((_, i) => `rill:method${i + 1}`).sort());
+    expect(plain["rill:method1"]).toBe("Priority-Flood depression filling with the plain queue (Alg. 2) — Barnes, Lehman & Mulla (2014), Computers & Geosciences 62:117–127");
+    const epsilonParams = { ...FACTS.params, epsilonFill: true };
+    const epsilon = job({ ...FACTS, params: epsilonParams, methods: methodsOf("drainage", epsilonParams, { geographic: false }) });
+    // epsilon fill replaces two methods (fill with the plain queue, flat resolution) by one (derived)
+    expect(methodKeys(epsilon).length).toBe(FACTS.methods.length - 1);
+    expect(Object.values(epsilon).filter((v) => String(v).startsWith("Flat resolution"))).toEqual([]);
   });
 
   it("the same facts always give the same bytes (invariant the signature relies on, derived)", () => {
