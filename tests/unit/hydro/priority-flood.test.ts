@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { makeGrid, type Grid } from "@/lib/raster/grid";
-import { gridOf, randomDem } from "@/tests/unit/hydro/dem-fixtures";
+import { gridOf, randomDem, seededRandom } from "@/tests/unit/hydro/dem-fixtures";
 import { nextUpFloat32, priorityFlood } from "@/lib/hydro/priority-flood";
 import { D8_DX, D8_DY } from "@/lib/hydro/neighbours";
 
@@ -111,6 +111,52 @@ describe("priorityFlood()", () => {
         else expect(dem.data[i]).toBeGreaterThanOrEqual(before[i]);
       }
       expect(everyInteriorCellHasOutflow(dem, false)).toBe(true);
+    }
+  });
+
+  it("fills heights spread over ±10⁶ m, both signs, to the lowest-spill surface of an iterated relaxation (derived)", () => {
+    // The fill is the least, over paths to the edge or to nodata, of the highest cell on the path
+    // (Barnes et al. 2014, §1): relaxing W = max(z, min W of the neighbours) from the outlets reaches it.
+    // Heights from −10⁶ to 10⁶ with many repeats exercise every digit of the queue's keys and −0.
+    for (let seed = 41; seed <= 44; seed++) {
+      const w = 31, h = 23, rnd = seededRandom(seed);
+      const z = new Float32Array(w * h);
+      for (let i = 0; i < z.length; i++) {
+        const r = rnd();
+        z[i] = r < 0.03 ? NaN : r < 0.1 ? -0 : Math.round((rnd() - 0.5) * 2e6 * rnd() ** 4) / 4;
+      }
+      const W = Float64Array.from(z, (v) => (Number.isNaN(v) ? NaN : Infinity));
+      const outlet = (x: number, y: number) => {
+        if (x === 0 || y === 0 || x === w - 1 || y === h - 1) return true;
+        for (let k = 0; k < 8; k++) if (Number.isNaN(z[(y + D8_DY[k]) * w + x + D8_DX[k]])) return true;
+        return false;
+      };
+      for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) if (outlet(x, y)) W[y * w + x] = z[y * w + x];
+      for (let sweep = 0, changed = true; changed && sweep < w * h; sweep++) {
+        changed = false;
+        for (let y = 1; y < h - 1; y++) {
+          for (let x = 1; x < w - 1; x++) {
+            const i = y * w + x;
+            if (Number.isNaN(z[i]) || outlet(x, y)) continue;
+            let low = Infinity;
+            for (let k = 0; k < 8; k++) {
+              const j = (y + D8_DY[k]) * w + x + D8_DX[k];
+              if (!Number.isNaN(W[j])) low = Math.min(low, W[j]);
+            }
+            const v = Math.max(z[i], low);
+            if (v < W[i]) {
+              W[i] = v;
+              changed = true;
+            }
+          }
+        }
+      }
+      const dem = makeGrid(z, w, h);
+      priorityFlood(dem);
+      for (let i = 0; i < z.length; i++) {
+        if (Number.isNaN(W[i])) expect(dem.data[i]).toBeNaN();
+        else expect(dem.data[i] === W[i], `cell ${i}: ${dem.data[i]} vs ${W[i]}`).toBe(true);
+      }
     }
   });
 
