@@ -7,7 +7,7 @@ cd "$(dirname "$0")/.."
 
 mode=${1:-${npm_lifecycle_event:-start}}
 need=(postgresql-15 postgresql-15-postgis-3)
-if [[ $mode == test ]]; then need+=(gdal-bin chromium python3 python3-prov python3-pip); fi
+if [[ $mode == test ]]; then need+=(gdal-bin chromium python3 python3-prov python3-pip python3-setuptools python3-wheel); fi
 
 missing=()
 for pkg in "${need[@]}"; do

@@ -1,11 +1,13 @@
-"""`pip install ./clients/python` with the machine's python3, offline (--no-index, the in-tree build backend needs
-nothing else): the package imports from where pip put it, its metadata is the one stated, every file matches its
-RECORD hash, and the example script runs its --help on the installed package. The sdist builds and installs too."""
+"""`pip install ./clients/python`, offline (--no-index --no-build-isolation, with Debian's pip, setuptools and wheel):
+the package imports from where pip put it, its metadata is the one stated, every file matches its RECORD hash, and
+the example script runs its --help on the installed package. The sdist builds and installs too. Both build from a
+copy of the directory, so setuptools' build folders never land in the checkout."""
 import base64
 import csv
 import hashlib
 import json
 import os
+import shutil
 import subprocess
 import sys
 import tempfile
@@ -14,6 +16,10 @@ import unittest
 HERE = os.path.dirname(os.path.abspath(__file__))
 CLIENT = os.path.abspath(os.path.join(HERE, ".."))
 EXAMPLE = os.path.join(CLIENT, "examples", "run_analysis.py")
+# Debian's interpreter sees Debian's python3-pip/-setuptools/-wheel (scripts/bootstrap.sh installs them in test
+# mode); a python3 earlier on PATH (pyenv) may lack wheel, which setuptools before 70.1 needs to build one.
+BUILDER = "/usr/bin/python3" if os.path.exists("/usr/bin/python3") else sys.executable
+PACKAGES = "python3-pip, python3-setuptools and python3-wheel"
 # run in the child with only the install directory on its path: imports the installed package, then runs the example
 PROBE = """
 import json, runpy, sys
@@ -30,8 +36,15 @@ print(json.dumps({"exit": code, "file": rillscale.__file__, "version": rillscale
 
 
 def pip(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "pip", "--disable-pip-version-check", "--no-input", *args],
+    return subprocess.run([BUILDER, "-m", "pip", "--disable-pip-version-check", "--no-input", *args],
                           capture_output=True, text=True, timeout=300)
+
+
+def source_copy(into: str) -> str:
+    """The client directory without its tests and caches, as `pip install ./clients/python` reads it."""
+    dest = os.path.join(into, "src")
+    shutil.copytree(CLIENT, dest, ignore=shutil.ignore_patterns("tests", "__pycache__", "*.egg-info", "build", "dist"))
+    return dest
 
 
 def child_env(path: str):
@@ -41,8 +54,10 @@ def child_env(path: str):
 
 
 def pip_install(test: unittest.TestCase, what: str, target: str):
-    if pip("--version").returncode != 0:
-        test.fail("pip is missing for %s: install Debian's python3-pip (scripts/bootstrap.sh does in test mode)" % sys.executable)
+    probe = subprocess.run([BUILDER, "-c", "import setuptools, wheel, pip"], capture_output=True, text=True)
+    if probe.returncode != 0:
+        test.fail("%s lacks pip, setuptools or wheel: install Debian's %s (scripts/bootstrap.sh does in test mode)\n%s"
+                  % (BUILDER, PACKAGES, probe.stderr[-500:]))
     run = pip("install", "--no-deps", "--no-build-isolation", "--no-index", "--target", target, what)
     test.assertEqual(run.returncode, 0, run.stdout[-2000:] + run.stderr[-2000:])
 
@@ -53,8 +68,9 @@ def record_hash(data: bytes) -> str:
 
 class Installs_with_pip(unittest.TestCase):
     def test_pip_installs_the_directory_offline_and_the_package_imports_from_the_install(self):
-        with tempfile.TemporaryDirectory() as target:
-            pip_install(self, CLIENT, target)
+        with tempfile.TemporaryDirectory() as d:
+            target = os.path.join(d, "site")
+            pip_install(self, source_copy(d), target)
             run = subprocess.run([sys.executable, "-c", PROBE, EXAMPLE], cwd=target, env=child_env(target),
                                  capture_output=True, text=True, timeout=60)
             self.assertEqual(run.returncode, 0, run.stderr[-2000:])
@@ -82,13 +98,13 @@ class Installs_with_pip(unittest.TestCase):
                 self.assertEqual(record[path], record_hash(installed), path)
 
     def test_the_sdist_builds_offline_and_pip_installs_it(self):
-        build = ("import sys; sys.path.insert(0, sys.argv[1]); import rillscale_build; "
-                 "print(rillscale_build.build_sdist(sys.argv[2]))")
+        # the PEP 517 hook pip itself calls, on the backend pyproject.toml names
+        build = "import sys; from setuptools import build_meta; print(build_meta.build_sdist(sys.argv[1]))"
         with tempfile.TemporaryDirectory() as d:
-            made = subprocess.run([sys.executable, "-c", build, os.path.join(CLIENT, "_build"), d], cwd=d,
-                                  capture_output=True, text=True, timeout=60)
+            src = source_copy(d)
+            made = subprocess.run([BUILDER, "-c", build, d], cwd=src, capture_output=True, text=True, timeout=120)
             self.assertEqual(made.returncode, 0, made.stderr[-2000:])
-            sdist = os.path.join(d, made.stdout.strip())
+            sdist = os.path.join(d, made.stdout.strip().splitlines()[-1])
             self.assertEqual(os.path.basename(sdist), "rillscale-0.1.0.tar.gz")
             target = os.path.join(d, "site")
             pip_install(self, sdist, target)

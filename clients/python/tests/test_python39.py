@@ -138,7 +138,7 @@ def problems_for_39(source: str, name: str = "<source>"):
 def client_sources():
     """Every .py a user of the client runs: the package, the examples and the build backend pip runs."""
     out = []
-    for sub in ("rillscale", "examples", "_build"):
+    for sub in ("rillscale", "examples"):
         for dirpath, _dirs, files in os.walk(os.path.join(CLIENT, sub)):
             out += [os.path.join(dirpath, f) for f in sorted(files) if f.endswith(".py")]
     return out
