@@ -11,6 +11,7 @@ export const PROBLEM_TYPES = {
   "insufficient-scope": { status: 403, title: "The API key lacks the scope this needs" },
   "cross-site": { status: 403, title: "Cross-site request refused" },
   "not-found": { status: 404, title: "Not found" },
+  "method-not-allowed": { status: 405, title: "This path does not answer that method" },
   conflict: { status: 409, title: "Conflicts with the current state" },
   "payload-too-large": { status: 413, title: "Request body too large" },
   "range-not-satisfiable": { status: 416, title: "The range is outside the file" },

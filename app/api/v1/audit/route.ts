@@ -3,6 +3,7 @@ import { AuditQuery } from "@/lib/api/schemas";
 import { json, parseQuery, withAuth } from "@/lib/api/handler";
 import { auditView } from "@/lib/api/views";
 import { listAudit } from "@/lib/audit/log";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -13,3 +14,5 @@ export const GET = withAuth(async ({ req, principal, db }) => {
   });
   return json({ items: page.items.map(auditView), nextCursor: page.nextCursor });
 }, { permission: "audit:read" });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

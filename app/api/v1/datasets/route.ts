@@ -7,6 +7,7 @@ import { dataEnv, objectStore } from "@/lib/jobs/config";
 import { withDataRoute } from "@/lib/jobs/route";
 import { DatasetListQuery, DatasetUploadQuery } from "@/lib/jobs/schemas";
 import { datasetView } from "@/lib/jobs/views";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -27,3 +28,5 @@ export const GET = withDataRoute(async ({ req, principal, db }) => {
   });
   return json({ items: page.items.map(datasetView), nextCursor: page.nextCursor });
 }, "jobs:read");
+
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET", "POST");

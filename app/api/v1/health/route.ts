@@ -4,6 +4,7 @@ import type { z } from "zod";
 import type { Health } from "@/lib/api/schemas";
 import { json, withPublic } from "@/lib/api/handler";
 import { queueHealthy } from "@/jobs/client";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -14,3 +15,5 @@ export const GET = withPublic(async ({ db }) => {
   const body: z.infer<typeof Health> = { status: database && queue ? "ok" : "degraded", database: { ok: database }, queue: { ok: queue } };
   return json(body, database ? 200 : 503);
 });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -3,6 +3,7 @@ import { InvitationCreateBody } from "@/lib/api/schemas";
 import { actingOf, json, parseJson, withAuth } from "@/lib/api/handler";
 import { invitationView } from "@/lib/api/views";
 import { createInvitation, listPendingInvitations } from "@/lib/auth/invitations";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -16,3 +17,5 @@ export const POST = withAuth(async ({ req, principal, db, clock, ip }) => {
   const inv = await createInvitation(db, actingOf(principal, ip), body, clock);
   return json(invitationView(inv), 201);
 }, { permission: "members:manage" });
+
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET", "POST");

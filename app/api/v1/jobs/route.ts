@@ -7,6 +7,7 @@ import { callerId, withDataRoute } from "@/lib/jobs/route";
 import { JobCreateBody, JobListQuery } from "@/lib/jobs/schemas";
 import { listJobs, submitJob, type JobStatus } from "@/lib/jobs/submit";
 import { jobPath, jobView } from "@/lib/jobs/views";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -36,3 +37,5 @@ export const GET = withDataRoute(async ({ req, principal, db }) => {
   });
   return json({ items: page.items.map(jobView), nextCursor: page.nextCursor });
 }, "jobs:read");
+
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET", "POST");

@@ -4,6 +4,7 @@ import { actingOf, json, parseJson, withAuth } from "@/lib/api/handler";
 import { keyView } from "@/lib/api/views";
 import { listOrgKeys } from "@/lib/auth/api-keys";
 import { issueKey } from "@/lib/auth/key-admin";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -16,3 +17,5 @@ export const POST = withAuth(async ({ req, principal, db, clock, ip }) => {
   const { key, secret } = await issueKey(db, actingOf(principal, ip), { ...body, expiresAt: body.expiresAt ? new Date(body.expiresAt) : undefined }, clock);
   return json({ key: keyView(key), secret }, 201);
 }, { permission: "keys:manage" });
+
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET", "POST");

@@ -1,6 +1,7 @@
 // GET /api/v1/me — who the caller is: organisation, and role (session) or scopes (API key), with permissions
 import type { MeBody } from "@/lib/api/schemas";
 import { json, withAuth } from "@/lib/api/handler";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -12,3 +13,5 @@ export const GET = withAuth(async ({ principal: p }) => {
       : { kind: "api_key", org, scopes: p.scopes, permissions: p.permissions };
   return json(body);
 });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -2,6 +2,7 @@
 import { PasswordResetRequestBody } from "@/lib/api/schemas";
 import { parseJson, withPublic } from "@/lib/api/handler";
 import { requestPasswordReset } from "@/lib/auth/password-resets";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -10,3 +11,5 @@ export const POST = withPublic(async ({ req, db, clock }) => {
   await requestPasswordReset(db, email, clock);
   return new Response(null, { status: 202 });
 });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

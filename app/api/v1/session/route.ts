@@ -5,6 +5,7 @@ import { noContent, parseJson, withAuth, withPublic } from "@/lib/api/handler";
 import { appendAudit } from "@/lib/audit/log";
 import { clearedSessionCookieHeader, revokeSession } from "@/lib/auth/sessions";
 import { signIn } from "@/lib/auth/sign-in";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -29,3 +30,5 @@ export const DELETE = withAuth(async ({ principal, db, clock, ip }) => {
   }, clock);
   return noContent({ "set-cookie": clearedSessionCookieHeader() });
 }, { sessionOnly: true });
+
+export const { GET, PUT, PATCH, OPTIONS } = otherMethods("POST", "DELETE");

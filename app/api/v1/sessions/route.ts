@@ -3,6 +3,7 @@ import { ApiError } from "@/lib/api/problem";
 import { noContent, withAuth } from "@/lib/api/handler";
 import { appendAudit } from "@/lib/audit/log";
 import { clearedSessionCookieHeader, revokeUserSessions } from "@/lib/auth/sessions";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -14,3 +15,5 @@ export const DELETE = withAuth(async ({ principal, db, clock, ip }) => {
   }, clock);
   return noContent({ "set-cookie": clearedSessionCookieHeader() });
 }, { sessionOnly: true });
+
+export const { GET, POST, PUT, PATCH, OPTIONS } = otherMethods("DELETE");

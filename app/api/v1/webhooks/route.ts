@@ -4,6 +4,7 @@ import { env } from "@/lib/env";
 import { createEndpoint, endpointView, listEndpoints } from "@/lib/webhooks/endpoints";
 import { allowPrivateTargets, auditWebhook, withUrlCheck } from "@/lib/webhooks/route-helpers";
 import { WebhookCreateBody } from "@/lib/webhooks/schemas";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -15,3 +16,5 @@ export const POST = withAuth(async (c) => {
   await auditWebhook(c, "webhook.create", endpoint.id, { url: endpoint.url, events: endpoint.events });
   return json({ endpoint: endpointView(endpoint), secret }, 201, { location: `/api/v1/webhooks/${endpoint.id}` });
 }, { permission: "keys:manage" });
+
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET", "POST");

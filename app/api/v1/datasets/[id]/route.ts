@@ -5,6 +5,7 @@ import { objectStore } from "@/lib/jobs/config";
 import { withDataRoute } from "@/lib/jobs/route";
 import { idParamOf } from "@/lib/jobs/params";
 import { datasetView } from "@/lib/jobs/views";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -14,3 +15,5 @@ export const DELETE = withDataRoute(async ({ params, principal, db, clock, ip })
   await deleteDataset(db, objectStore(), clock, actingOf(principal, ip), idParamOf(params, "dataset"));
   return noContent();
 }, "datasets:write");
+
+export const { POST, PUT, PATCH, OPTIONS } = otherMethods("GET", "DELETE");

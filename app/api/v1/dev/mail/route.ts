@@ -3,6 +3,7 @@ import { json, withAuth } from "@/lib/api/handler";
 import { ApiError } from "@/lib/api/problem";
 import { devMailEnabled, env } from "@/lib/env";
 import { readCaughtMail } from "@/lib/mail/store";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -11,3 +12,5 @@ export const GET = withAuth(async () => {
   if (!devMailEnabled() || !dir) throw new ApiError("not-found", "The development mail box is off.");
   return json({ items: readCaughtMail(dir) });
 }, { permission: "mail:read-dev" });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

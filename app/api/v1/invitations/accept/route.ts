@@ -2,6 +2,7 @@
 import { InvitationAcceptBody } from "@/lib/api/schemas";
 import { noContent, parseJson, withPublic } from "@/lib/api/handler";
 import { acceptInvitation } from "@/lib/auth/invitations";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -10,3 +11,5 @@ export const POST = withPublic(async ({ req, db, clock, ip, userAgent }) => {
   const { cookie } = await acceptInvitation(db, { ...body, ip, userAgent }, clock);
   return noContent({ "set-cookie": cookie });
 });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

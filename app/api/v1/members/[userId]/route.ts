@@ -4,6 +4,7 @@ import { actingOf, json, noContent, parseJson, withAuth } from "@/lib/api/handle
 import { ApiError } from "@/lib/api/problem";
 import { memberView } from "@/lib/api/views";
 import { changeRole, removeMember } from "@/lib/auth/members";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -25,3 +26,5 @@ export const DELETE = withAuth(async ({ params, principal, db, clock, ip }) => {
   await removeMember(db, actingOf(principal, ip), userIdOf(params), clock);
   return noContent();
 }, { permission: "members:manage" });
+
+export const { GET, POST, PUT, OPTIONS } = otherMethods("PATCH", "DELETE");

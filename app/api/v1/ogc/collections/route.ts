@@ -2,7 +2,10 @@
 import { collectionsDoc } from "@/lib/features/documents";
 import { listNetworkCollections } from "@/lib/features/network-collections";
 import { document, withFeatureRoute } from "@/lib/features/route";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
 export const GET = withFeatureRoute(async ({ db, principal }, bases) => document(collectionsDoc(bases, await listNetworkCollections(db, principal.org.id))));
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

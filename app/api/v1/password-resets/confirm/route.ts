@@ -2,6 +2,7 @@
 import { PasswordResetConfirmBody } from "@/lib/api/schemas";
 import { noContent, parseJson, withPublic } from "@/lib/api/handler";
 import { confirmPasswordReset } from "@/lib/auth/password-resets";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -9,3 +10,5 @@ export const POST = withPublic(async ({ req, db, clock }) => {
   await confirmPasswordReset(db, await parseJson(req, PasswordResetConfirmBody), clock);
   return noContent();
 });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

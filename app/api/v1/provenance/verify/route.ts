@@ -5,6 +5,7 @@ import { verifyDetached } from "@/lib/provenance/detached-jws";
 import { publishedJwks } from "@/lib/provenance/keys";
 import { filesOfDocument, type ProvDocument } from "@/lib/provenance/prov-json";
 import { ProvenanceVerifyBody } from "@/lib/provenance/schemas";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -31,3 +32,5 @@ export const POST = withAuth(async ({ req, db }) => {
   const job = doc?.activity ? (Object.keys(doc.activity)[0]?.replace(/^rill:job-/, "") ?? null) : null;
   return json({ valid: error === null && files.every((f) => f.ok), kid, error, job, files });
 }, { permission: "provenance:read" });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

@@ -3,6 +3,7 @@ import { actingOf, json, withAuth } from "@/lib/api/handler";
 import { appendAudit } from "@/lib/audit/log";
 import { env } from "@/lib/env";
 import { rotateSigningKey } from "@/lib/provenance/keys";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -12,3 +13,5 @@ export const POST = withAuth(async ({ db, principal, ip, clock }) => {
   await appendAudit(db, { orgId: acting.orgId, action: "signing-key.rotate", actor: acting.actor, target: `signing-key:${r.active}`, ip, details: { retired: r.retired } }, clock);
   return json(r);
 }, { permission: "keys:manage" });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

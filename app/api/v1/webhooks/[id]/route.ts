@@ -3,6 +3,7 @@ import { json, noContent, parseJson, withAuth } from "@/lib/api/handler";
 import { deleteEndpoint, endpointView, getEndpoint, updateEndpoint } from "@/lib/webhooks/endpoints";
 import { allowPrivateTargets, auditWebhook, notFound, withUrlCheck } from "@/lib/webhooks/route-helpers";
 import { WebhookParams, WebhookUpdateBody } from "@/lib/webhooks/schemas";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -33,3 +34,5 @@ export const DELETE = withAuth(async (c) => {
   await auditWebhook(c, "webhook.delete", id);
   return noContent();
 }, { permission: "keys:manage" });
+
+export const { POST, PUT, OPTIONS } = otherMethods("GET", "PATCH", "DELETE");

@@ -4,6 +4,7 @@ import { idParamOf } from "@/lib/jobs/params";
 import { withDataRoute } from "@/lib/jobs/route";
 import { cancelJob } from "@/lib/jobs/submit";
 import { jobView } from "@/lib/jobs/views";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -11,3 +12,5 @@ export const POST = withDataRoute(async ({ params, principal, db, clock, ip }) =
   const job = await cancelJob(db, clock, actingOf(principal, ip), idParamOf(params, "job"));
   return json(jobView(job), job.status === "cancelled" ? 200 : 202);
 }, "jobs:write");
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

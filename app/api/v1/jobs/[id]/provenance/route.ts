@@ -1,6 +1,7 @@
 // GET /api/v1/jobs/{id}/provenance — the signed W3C PROV-JSON document, byte for byte as signed (audited)
 import { withAuth } from "@/lib/api/handler";
 import { provenanceOf } from "@/lib/provenance/route-helpers";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -14,3 +15,5 @@ export const GET = withAuth(async (c) => {
     },
   });
 }, { permission: "provenance:read" });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

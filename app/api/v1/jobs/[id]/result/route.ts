@@ -5,6 +5,7 @@ import { idParamOf } from "@/lib/jobs/params";
 import { withDataRoute } from "@/lib/jobs/route";
 import { SOFTWARE } from "@/lib/jobs/software";
 import { getResult } from "@/lib/jobs/submit";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -17,3 +18,5 @@ export const GET = withDataRoute(async ({ params, principal, db, clock, ip }) =>
     software: { name: SOFTWARE.name, version: result.softwareVersion }, summary: result.summary, timingsS: result.timingsS,
   });
 }, "results:read");
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -8,6 +8,7 @@ import { env } from "@/lib/env";
 import { idParamOf } from "@/lib/jobs/params";
 import { SOFTWARE } from "@/lib/jobs/software";
 import { getResult } from "@/lib/jobs/submit";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -26,3 +27,5 @@ export const GET = withAuth(async ({ params, principal, db }) => {
   });
   return json(item, 200, { "content-type": "application/geo+json" });
 }, { permission: "results:read" });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -4,6 +4,7 @@ import { actingOf, json, parseJson, withAuth } from "@/lib/api/handler";
 import { ApiError } from "@/lib/api/problem";
 import { keyView } from "@/lib/api/views";
 import { rotateKey } from "@/lib/auth/key-admin";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -14,3 +15,5 @@ export const POST = withAuth(async ({ req, params, principal, db, clock, ip }) =
   const { key, secret } = await rotateKey(db, actingOf(principal, ip), p.data.id, graceHours, clock);
   return json({ key: keyView(key), secret });
 }, { permission: "keys:manage" });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

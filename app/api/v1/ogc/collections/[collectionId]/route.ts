@@ -2,8 +2,11 @@
 import { collectionDoc } from "@/lib/features/documents";
 import { getNetworkCollection } from "@/lib/features/network-collections";
 import { document, withFeatureRoute } from "@/lib/features/route";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
 export const GET = withFeatureRoute<{ collectionId: string }>(async ({ db, principal, params }, bases) =>
   document(collectionDoc(bases, await getNetworkCollection(db, principal.org.id, params.collectionId))));
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -4,6 +4,7 @@ import { env } from "@/lib/env";
 import { endpointView, rotateEndpointSecret } from "@/lib/webhooks/endpoints";
 import { auditWebhook, notFound } from "@/lib/webhooks/route-helpers";
 import { WebhookParams, WebhookRotateBody } from "@/lib/webhooks/schemas";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -16,3 +17,5 @@ export const POST = withAuth(async (c) => {
   await auditWebhook(c, "webhook.rotate-secret", p.data.id, { overlapHours: body.overlapHours });
   return json({ endpoint: endpointView(r.endpoint), secret: r.secret });
 }, { permission: "keys:manage" });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");

@@ -7,6 +7,7 @@ import { objectStore } from "@/lib/jobs/config";
 import { withDataRoute } from "@/lib/jobs/route";
 import { ArtifactParams } from "@/lib/jobs/schemas";
 import { getResult } from "@/lib/jobs/submit";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -23,3 +24,5 @@ export const GET = withDataRoute<{ id: string; name: string }>(async ({ req, par
   }, clock);
   return artifactResponse(objectStore(), artifact, req);
 }, "results:read");
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -3,6 +3,7 @@ import { featureCollectionOf, GEOJSON } from "@/lib/features/documents";
 import { encodeItemsCursor, parseItemsQuery } from "@/lib/features/items-query";
 import { getNetworkCollection, queryNetworkItems } from "@/lib/features/network-collections";
 import { document, withFeatureRoute } from "@/lib/features/route";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -14,3 +15,5 @@ export const GET = withFeatureRoute<{ collectionId: string }>(async ({ db, princ
   const next = page.nextAfter === null ? null : encodeItemsCursor(page.nextAfter);
   return document(featureCollectionOf(bases, collection, page, search, next, clock.now()), GEOJSON);
 });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -3,6 +3,7 @@ import { json, withAuth } from "@/lib/api/handler";
 import { ApiError } from "@/lib/api/problem";
 import { attemptsOf, deliveryView, getDelivery, getEndpoint } from "@/lib/webhooks/endpoints";
 import { DeliveryParams } from "@/lib/webhooks/schemas";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -15,3 +16,5 @@ export const GET = withAuth(async ({ db, principal, params }) => {
   }));
   return json({ ...deliveryView(d), attemptLog });
 }, { permission: "keys:manage" });
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods("GET");

@@ -4,6 +4,7 @@ import { ApiError } from "@/lib/api/problem";
 import { deliveryView, getDelivery, getEndpoint, redeliver } from "@/lib/webhooks/endpoints";
 import { auditWebhook } from "@/lib/webhooks/route-helpers";
 import { DeliveryParams } from "@/lib/webhooks/schemas";
+import { otherMethods } from "@/lib/api/fallbacks";
 
 export const runtime = "nodejs";
 
@@ -17,3 +18,5 @@ export const POST = withAuth(async (c) => {
   await auditWebhook(c, "webhook.redeliver", endpoint.id, { of: original.id, delivery: copy.id });
   return json(deliveryView(copy), 202);
 }, { permission: "keys:manage" });
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods("POST");
