@@ -31,9 +31,9 @@ const WAY_OUT = 1 << 30;
 export interface FlatOptions {
   /** checked every few hundred rows; an aborted signal throws its reason */
   signal?: AbortSignal;
-  /** bit set of the cells that may be flat (cell j is bit j & 31 of word j >> 5), holding every flat
-   *  cell, as `priorityFlood` fills it through its `flatCandidates` option; only these cells are
-   *  tested. Without it every interior cell is. */
+  /** bit set of interior cells that may be flat (cell j is bit j & 31 of word j >> 5), holding every
+   *  flat cell, as `priorityFlood` fills it through its `flatCandidates` option; only these cells are
+   *  tested, and a cell outside it counts as off the flats. Without it every interior cell is tested. */
   candidates?: Int32Array;
 }
 
@@ -59,15 +59,18 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   }
   const signal = options.signal;
   signal?.throwIfAborted();
-  const candidates = options.candidates ?? everyCell(n);
+  const candidates = options.candidates ?? interiorCells(w, h);
   const state = new Int32Array(n);
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
   // 1. Flat cells among the candidates, row by row: interior, valid, every neighbour valid and not
   //    lower (NaN fails `>=`); one with a higher neighbour is a high edge, step 1. Edge cells and cells
-  //    next to nodata are never flat: with no lower neighbour they are outlets. The flats are counted
-  //    on the way by joining runs of flat cells that touch the runs of the row above.
+  //    next to nodata are never flat: with no lower neighbour they are outlets. A flat cell next to a
+  //    cell of its elevation off the flats has a way out (that cell drains, or it would be flat): a
+  //    neighbour outside the candidates is off the flats, one tested before is known, and one tested
+  //    after marks it then. The flats are counted on the way by joining runs of flat cells that touch
+  //    the runs of the row above.
   const runs = new FlatRuns(w);
   let flatCells = 0;
   for (let y = 1; y < h - 1; y++) {
@@ -85,27 +88,32 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
         const i = (wi << 5) + 31 - Math.clz32(low);
         const zc = z[i];
         if (zc !== zc) continue;
-        let flat = true, higher = false;
+        let flat = true, higher = false, wayOut = false;
         for (let k = 0; k < 8; k++) {
-          const zj = z[i + offsets[k]];
+          const j = i + offsets[k];
+          const zj = z[j];
           if (!(zj >= zc)) {
             flat = false;
             break;
           }
           if (zj > zc) higher = true;
+          else if ((candidates[j >> 5] & (1 << (j & 31))) === 0 || (j < i && state[j] === 0)) wayOut = true;
         }
         if (flat) {
-          state[i] = higher ? 1 : NOT_REACHED;
+          state[i] = (higher ? 1 : NOT_REACHED) | (wayOut ? WAY_OUT : 0);
           flatCells++;
           runs.add(i - row);
+        } else {
+          // a candidate that is not flat: the flat cells of its elevation tested before it have a way out
+          for (let k = 0; k < 8; k++) {
+            const j = i + offsets[k];
+            if (j < i && state[j] !== 0 && z[j] === zc) state[j] |= WAY_OUT;
+          }
         }
       }
     }
     runs.endRow();
-    // The row above now has all its neighbours decided: mark its ways out while it is in cache.
-    if (y > 1) markWaysOut(z, state, candidates, offsets, row - w + 1, row - 2);
   }
-  if (h > 2) markWaysOut(z, state, candidates, offsets, (h - 2) * w + 1, (h - 1) * w - 2);
   const result = { increments: state, flatCells, flats: runs.components(), unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
   if (flatCells === 0) return result;
 
@@ -224,35 +232,12 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   return { ...result, unresolvedFlats, unresolvedCells, maxIncrement };
 }
 
-/** Sets WAY_OUT on the flat cells among the candidates first … last (inclusive, one row) that touch a
- *  cell of equal elevation off the flats: that cell drains (or it would be flat), so it is an outlet. */
-function markWaysOut(z: Float32Array, state: Int32Array, candidates: Int32Array, offsets: Int32Array, first: number, last: number): void {
-  for (let wi = first >> 5; wi <= last >> 5; wi++) {
-    let word = candidates[wi];
-    if (word === 0) continue;
-    if (wi === first >> 5) word &= -1 << (first & 31);
-    if (wi === last >> 5) word &= -1 >>> (31 - (last & 31));
-    while (word !== 0) {
-      const low = word & -word;
-      word ^= low;
-      const c = (wi << 5) + 31 - Math.clz32(low);
-      if (state[c] === 0) continue;
-      const zc = z[c];
-      for (let k = 0; k < 8; k++) {
-        const j = c + offsets[k];
-        if (state[j] === 0 && z[j] === zc) {
-          state[c] |= WAY_OUT;
-          break;
-        }
-      }
-    }
+/** A bit set holding every interior cell of a w × h grid (the cells that can be flat). */
+function interiorCells(w: number, h: number): Int32Array {
+  const set = new Int32Array((w * h + 31) >>> 5);
+  for (let y = 1; y < h - 1; y++) {
+    for (let i = y * w + 1; i < y * w + w - 1; i++) set[i >> 5] |= 1 << (i & 31);
   }
-}
-
-/** A bit set holding cells 0 … n − 1 (the bits past n in the last word stay clear). */
-function everyCell(n: number): Int32Array {
-  const set = new Int32Array((n + 31) >>> 5).fill(-1);
-  if ((n & 31) !== 0) set[set.length - 1] = -1 >>> (32 - (n & 31));
   return set;
 }
 

@@ -126,6 +126,26 @@ describe("resolveFlats()", () => {
     }
   });
 
+  it("finds the way out through a draining cell of the flat's height that comes after the flat in row order (derived; Barnes et al. 2014)", () => {
+    // (4, 2) is at the flat's 5 m but drains to the 1 m corner: the only way out, tested after the
+    // flat cells next to it. Every flat cell touches the 9 m rim, so the away term is 0.
+    const rows = [
+      [9, 9, 9, 9, 9, 9],
+      [9, 5, 5, 5, 9, 9],
+      [9, 5, 5, 5, 5, 9],
+      [9, 9, 9, 9, 9, 1],
+    ];
+    const candidates = new Int32Array(1);
+    const filled = gridOf(rows);
+    priorityFlood(filled, { flatCandidates: candidates });
+    for (const r of [resolveFlats(gridOf(rows)), resolveFlats(filled, { candidates })]) {
+      expect(r).toMatchObject({ flatCells: 6, flats: 1, unresolvedFlats: 0, maxIncrement: 6 });
+      for (let x = 1; x <= 3; x++) {
+        for (const y of [1, 2]) expect(r.increments[y * 6 + x], `cell (${x}, ${y})`).toBe(2 * (4 - x));
+      }
+    }
+  });
+
   it("rejects a candidate set of the wrong size (derived: one bit a cell)", () => {
     expect(() => resolveFlats(flatWithOneOutlet(), { candidates: new Int32Array(1) })).toThrow(RangeError);
   });
