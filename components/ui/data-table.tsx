@@ -1,6 +1,16 @@
-import { Fragment, type HTMLAttributes, type ReactNode } from "react";
+"use client";
+
+import { Fragment, useId, useState, type HTMLAttributes, type ReactNode } from "react";
 import { formatInstant } from "@/components/format/instant";
+import { Button } from "@/components/ui/button";
 import { UtcCaption } from "@/components/ui/utc-caption";
+
+/** A row's place in the table's one open expansion: whether it is open, how to flip it, the id of what opens. */
+export interface RowState {
+  expanded: boolean;
+  toggle: () => void;
+  expansionId: string;
+}
 
 export interface Column<T> {
   /** React key of the column, and the cell's `data-cell` (tests and styles find a cell by it). */
@@ -9,7 +19,7 @@ export interface Column<T> {
   /** A header read by screen readers only (an actions column). */
   headerHidden?: boolean;
   className?: string | ((row: T) => string | undefined);
-  cell: (row: T) => ReactNode;
+  cell: (row: T, state: RowState) => ReactNode;
 }
 
 export interface DataTableProps<T> {
@@ -22,8 +32,8 @@ export interface DataTableProps<T> {
   empty?: ReactNode;
   /** Attributes of a row's <tr> (a muted class, a data-* id). */
   rowProps?: (row: T) => HTMLAttributes<HTMLTableRowElement> & Partial<Record<`data-${string}`, string>>;
-  /** A full-width row under a row (details opened in place), or null for none. */
-  expansion?: (row: T) => ReactNode | null;
+  /** A full-width row under the open row (details read in place); an ExpandButton in a cell opens it. */
+  expansion?: (row: T) => ReactNode;
   /** False for tables without instants; otherwise the caption says the times are UTC. */
   utcCaption?: boolean;
   busy?: boolean;
@@ -31,6 +41,8 @@ export interface DataTableProps<T> {
 
 // The console's one table: a card that scrolls sideways, dense rows, a header row, an empty-state row.
 export function DataTable<T>({ label, columns, rows, rowKey, empty, rowProps, expansion, utcCaption = true, busy }: DataTableProps<T>) {
+  const [open, setOpen] = useState<string | null>(null);
+  const idBase = useId();
   return (
     <div className="card overflow-x-auto">
       <table className="table-dense" aria-label={label} aria-busy={busy}>
@@ -53,20 +65,21 @@ export function DataTable<T>({ label, columns, rows, rowKey, empty, rowProps, ex
             </tr>
           )}
           {rows.map((row) => {
-            const below = expansion?.(row) ?? null;
+            const key = rowKey(row);
+            const state: RowState = { expanded: open === key, toggle: () => setOpen(open === key ? null : key), expansionId: `${idBase}-${key}` };
             return (
-              <Fragment key={rowKey(row)}>
+              <Fragment key={key}>
                 <tr {...rowProps?.(row)}>
                   {columns.map((c) => (
                     <td key={c.key} data-cell={c.key} className={typeof c.className === "function" ? c.className(row) : c.className}>
-                      {c.cell(row)}
+                      {c.cell(row, state)}
                     </td>
                   ))}
                 </tr>
-                {below !== null && (
-                  <tr>
+                {state.expanded && expansion !== undefined && (
+                  <tr id={state.expansionId}>
                     <td colSpan={columns.length} className="bg-paper-sunk">
-                      {below}
+                      {expansion(row)}
                     </td>
                   </tr>
                 )}
@@ -80,13 +93,13 @@ export function DataTable<T>({ label, columns, rows, rowKey, empty, rowProps, ex
 }
 
 /** The last column of a table with row actions: a header only screen readers read, buttons at the right. */
-export function actionsColumn<T>(actions: (row: T) => ReactNode, header = "Actions"): Column<T> {
+export function actionsColumn<T>(actions: (row: T, state: RowState) => ReactNode, header = "Actions"): Column<T> {
   return {
     key: "actions",
     header,
     headerHidden: true,
     className: "whitespace-nowrap text-right",
-    cell: (row) => <div className="flex justify-end gap-1.5">{actions(row)}</div>,
+    cell: (row, state) => <div className="flex justify-end gap-1.5">{actions(row, state)}</div>,
   };
 }
 
@@ -97,5 +110,14 @@ export function InstantBy({ at, by }: { at: string; by: string }) {
       {formatInstant(at, false)}
       <span className="block text-xs text-graphite-muted">{by}</span>
     </>
+  );
+}
+
+/** The button that opens and closes a row's expansion. */
+export function ExpandButton({ state, show, hide }: { state: RowState; show: string; hide: string }) {
+  return (
+    <Button size="sm" aria-expanded={state.expanded} aria-controls={state.expansionId} onClick={state.toggle}>
+      {state.expanded ? hide : show}
+    </Button>
   );
 }

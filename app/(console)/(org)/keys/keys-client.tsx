@@ -21,7 +21,7 @@ import { Button } from "@/components/ui/button";
 import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
 import { Dialog } from "@/components/ui/dialog";
 import { CheckboxGroup, TextField } from "@/components/ui/field";
-import { OneTimeSecret } from "@/components/ui/one-time-secret";
+import { OneTimeSecretDialog } from "@/components/ui/one-time-secret";
 import { PageHeader } from "@/components/ui/page-header";
 
 const KEYS_QUERY_KEY = ["keys"] as const;
@@ -250,25 +250,19 @@ function SecretDialog({
   onClose: () => void;
 }) {
   return (
-    <Dialog
-      open
+    <OneTimeSecretDialog
       title={rotated ? `New secret for “${apiKey.name}”` : `Key “${apiKey.name}” created`}
+      secret={secret}
+      warning="Copy the secret now. It is shown only once: Rillscale keeps a hash of it, not the secret."
       onClose={onClose}
-      dismissible={false}
-      actions={
-        <Button variant="primary" onClick={onClose}>
-          I have stored it
-        </Button>
-      }
     >
-      <OneTimeSecret secret={secret} warning="Copy the secret now. It is shown only once: Rillscale keeps a hash of it, not the secret." />
       {rotated && apiKey.graceUntil !== null && (
         <p className="text-graphite-muted">
           The previous secret keeps working until {formatInstant(apiKey.graceUntil)}, so running scripts can switch
           over; after that it is refused.
         </p>
       )}
-    </Dialog>
+    </OneTimeSecretDialog>
   );
 }
 

@@ -21,10 +21,9 @@ import { formatInstant, formatInstantPrecise } from "@/components/format/instant
 import { Alert } from "@/components/ui/alert";
 import { Badge, CodeBadges, type BadgeTone } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
-import { DataTable, actionsColumn, type Column } from "@/components/ui/data-table";
-import { Dialog } from "@/components/ui/dialog";
+import { DataTable, ExpandButton, actionsColumn, type Column } from "@/components/ui/data-table";
 import { CheckboxGroup, TextField } from "@/components/ui/field";
-import { OneTimeSecret } from "@/components/ui/one-time-secret";
+import { OneTimeSecretDialog } from "@/components/ui/one-time-secret";
 import { PageHeader } from "@/components/ui/page-header";
 
 type Endpoint = z.infer<typeof WebhookEndpoint>;
@@ -232,29 +231,20 @@ function RegisterForm({ onRegistered }: { onRegistered: (endpoint: Endpoint, sec
 
 function SecretDialog({ endpoint, secret, rotated, onClose }: { endpoint: Endpoint; secret: string; rotated: boolean; onClose: () => void }) {
   return (
-    <Dialog
-      open
+    <OneTimeSecretDialog
       title={rotated ? "New signing secret" : "Endpoint registered"}
+      secret={secret}
+      warning="Copy the signing secret now. It is shown only once; the receiver needs it to verify the webhook-signature header."
       onClose={onClose}
-      dismissible={false}
-      actions={
-        <Button variant="primary" onClick={onClose}>
-          I have stored it
-        </Button>
-      }
     >
       <p className="break-all font-mono text-xs">{endpoint.url}</p>
-      <OneTimeSecret
-        secret={secret}
-        warning="Copy the signing secret now. It is shown only once; the receiver needs it to verify the webhook-signature header."
-      />
       {rotated && endpoint.previousSecretUntil !== null && (
         <p className="text-graphite-muted">
           Until {formatInstant(endpoint.previousSecretUntil)} every delivery carries two signatures, one made with this secret
           and one with the previous, so the receiver can switch over without refusing a message.
         </p>
       )}
-    </Dialog>
+    </OneTimeSecretDialog>
   );
 }
 
@@ -304,7 +294,6 @@ function DeliveryLog({ endpoint }: { endpoint: Endpoint }) {
     queryFn: () => api<{ items: Delivery[]; nextCursor: string | null }>(`/webhooks/${endpoint.id}/deliveries`),
     refetchInterval: (q) => (q.state.data?.items.some((d) => d.state === "pending") ? PENDING_REFRESH_MS : false),
   });
-  const [openAttempts, setOpenAttempts] = useState<string | null>(null);
   const redeliver = useMutation({
     mutationFn: (d: Delivery) => api<Delivery>(`/webhooks/${endpoint.id}/deliveries/${d.id}/redeliver`, { method: "POST" }),
     onSuccess: () => void queryClient.invalidateQueries({ queryKey: key }),
@@ -336,11 +325,9 @@ function DeliveryLog({ endpoint }: { endpoint: Endpoint }) {
         </>
       ),
     },
-    actionsColumn((d) => (
+    actionsColumn((d, state) => (
       <>
-        <Button size="sm" aria-expanded={openAttempts === d.id} onClick={() => setOpenAttempts(openAttempts === d.id ? null : d.id)}>
-          {openAttempts === d.id ? "Hide attempts" : "Attempts"}
-        </Button>
+        <ExpandButton state={state} show="Attempts" hide="Hide attempts" />
         <Button size="sm" disabled={!endpoint.enabled || redeliver.isPending} onClick={() => redeliver.mutate(d)}>
           Redeliver
         </Button>
@@ -372,7 +359,7 @@ function DeliveryLog({ endpoint }: { endpoint: Endpoint }) {
           rowKey={(d) => d.id}
           rowProps={(d) => ({ "data-delivery-id": d.id })}
           empty="Nothing sent yet: deliveries appear here when a job of this organisation ends."
-          expansion={(d) => (openAttempts === d.id ? <AttemptLog endpointId={endpoint.id} deliveryId={d.id} /> : null)}
+          expansion={(d) => <AttemptLog endpointId={endpoint.id} deliveryId={d.id} />}
         />
       )}
       {log.isPending && <p className="text-graphite-muted">Loading deliveries…</p>}
