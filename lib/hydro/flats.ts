@@ -21,8 +21,9 @@ export interface FlatResolution {
 }
 
 // Per-cell state while resolving, in the increments array itself (no label grid): 0 off flats; a flat
-// cell holds its steps from higher terrain (1, 2, …) or NOT_REACHED, plus the WAY_OUT bit when it
-// touches a draining cell of equal elevation; a finished cell holds −increment until the last pass.
+// cell holds the bitwise complement (so a negative number) of its steps from higher terrain (1, 2, …)
+// or NOT_REACHED, plus the WAY_OUT bit when it touches a draining cell of equal elevation; a finished
+// cell holds its increment, so a resolved grid needs no pass to turn states into increments.
 /** a flat cell no breadth-first search from higher terrain has reached (yet) */
 const NOT_REACHED = 0x3fffffff;
 /** flag: the cell touches a draining cell of equal elevation, so it is one step from an outlet */
@@ -100,14 +101,14 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
           else if ((candidates[j >> 5] & (1 << (j & 31))) === 0 || (j < i && state[j] === 0)) wayOut = true;
         }
         if (flat) {
-          state[i] = (higher ? 1 : NOT_REACHED) | (wayOut ? WAY_OUT : 0);
+          state[i] = ~((higher ? 1 : NOT_REACHED) | (wayOut ? WAY_OUT : 0));
           flatCells++;
           runs.add(i - row);
         } else {
           // a candidate that is not flat: the flat cells of its elevation tested before it have a way out
           for (let k = 0; k < 8; k++) {
             const j = i + offsets[k];
-            if (j < i && state[j] !== 0 && z[j] === zc) state[j] |= WAY_OUT;
+            if (j < i && state[j] !== 0 && z[j] === zc) state[j] &= ~WAY_OUT; // sets the bit of the complement
           }
         }
       }
@@ -129,19 +130,19 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
       const low = word & -word;
       word ^= low;
       const i = (wi << 5) + 31 - Math.clz32(low);
-      if ((state[i] & ~WAY_OUT) === 1) queue[tail++] = i;
+      if ((~state[i] & ~WAY_OUT) === 1) queue[tail++] = i;
     }
   }
   let maxAway = 0;
   let wayOuts = 0;
   for (let head = 0; head < tail; head++) {
-    const c = queue[head], v = state[c], away = v & ~WAY_OUT;
+    const c = queue[head], v = ~state[c], away = v & ~WAY_OUT;
     if (away > maxAway) maxAway = away;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
-      const sj = state[j];
-      if ((sj & ~WAY_OUT) === NOT_REACHED) {
-        state[j] = (away + 1) | (sj & WAY_OUT);
+      const vj = ~state[j]; // −1 off the flats, never NOT_REACHED
+      if ((vj & ~WAY_OUT) === NOT_REACHED) {
+        state[j] = ~((away + 1) | (vj & WAY_OUT));
         queue[tail++] = j;
       }
     }
@@ -156,13 +157,13 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
         const low = word & -word;
         word ^= low;
         const i = (wi << 5) + 31 - Math.clz32(low);
-        if (state[i] === (NOT_REACHED | WAY_OUT)) queue[wayOuts++] = i;
+        if (~state[i] === (NOT_REACHED | WAY_OUT)) queue[wayOuts++] = i;
       }
     }
   }
 
-  // 3. Steps towards lower terrain, level by level from the cells with a way out (step 1); the final
-  //    increment is stored negated, which also marks the cell visited.
+  // 3. Steps towards lower terrain, level by level from the cells with a way out (step 1); storing the
+  //    (positive) increment also marks the cell visited.
   const awayTerm = (v: number) => {
     const away = v & ~WAY_OUT;
     return away === NOT_REACHED ? 0 : maxAway - away;
@@ -170,9 +171,9 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   let maxIncrement = 0;
   for (let q = 0; q < wayOuts; q++) {
     const i = queue[q];
-    const inc = 2 + awayTerm(state[i]);
+    const inc = 2 + awayTerm(~state[i]);
     if (inc > maxIncrement) maxIncrement = inc;
-    state[i] = -inc;
+    state[i] = inc;
   }
   tail = wayOuts;
   for (let head = 0, step = 2; head < tail; step++) {
@@ -182,10 +183,10 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
       for (let k = 0; k < 8; k++) {
         const j = c + offsets[k];
         const sj = state[j];
-        if (sj > 0) {
-          const inc = 2 * step + awayTerm(sj);
+        if (sj < 0) {
+          const inc = 2 * step + awayTerm(~sj);
           if (inc > maxIncrement) maxIncrement = inc;
-          state[j] = -inc;
+          state[j] = inc;
           queue[tail++] = j;
         }
       }
@@ -193,13 +194,10 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   }
   signal?.throwIfAborted();
 
-  // 4. Increments back to positive: when every flat cell was reached, the queue lists them all.
-  //    Otherwise the cells still positive belong to flats without a way out: they get 0 and their
-  //    flats are counted by a search over them alone.
-  if (tail === flatCells) {
-    for (let q = 0; q < tail; q++) state[queue[q]] = -state[queue[q]];
-    return { ...result, maxIncrement };
-  }
+  // 4. When every flat cell was reached, the states are the increments. Otherwise the cells still
+  //    negative belong to flats without a way out: they get 0 and their flats are counted by a search
+  //    over them alone.
+  if (tail === flatCells) return { ...result, maxIncrement };
   let unresolvedCells = 0;
   let unresolvedFlats = 0;
   for (let wi = 0; wi < words; wi++) {
@@ -208,10 +206,7 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
       const low = word & -word;
       word ^= low;
       const i = (wi << 5) + 31 - Math.clz32(low);
-      const v = state[i];
-      if (v < 0) {
-        state[i] = -v;
-      } else if (v > 0) {
+      if (state[i] < 0) {
         unresolvedFlats++;
         state[i] = 0;
         queue[0] = i;
@@ -220,7 +215,7 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
           unresolvedCells++;
           for (let k = 0; k < 8; k++) {
             const j = c + offsets[k];
-            if (state[j] > 0) {
+            if (state[j] < 0) {
               state[j] = 0;
               queue[end++] = j;
             }
