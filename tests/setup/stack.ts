@@ -120,6 +120,8 @@ export interface ExtraStack {
   env: Record<string, string>;
   demoKeySecret: string;
   logFile: string;
+  /** For a suite that kills its worker (it then starts and stops its own replacement). */
+  workerPid: number;
   /** Stops the server, worker and mail catcher, drops the database and removes the run directory. */
   stop(): Promise<void>;
 }
@@ -136,7 +138,7 @@ export async function startExtraStack(label: string, overrides: Record<string, s
     if (buildIsStale()) throw new Error("the app build is stale; the shared test stack builds it first");
   });
   return {
-    url, database, env, demoKeySecret, logFile,
+    url, database, env, demoKeySecret, logFile, workerPid: worker.pid!,
     async stop() {
       await Promise.all([stopChild(web), stopChild(worker)]);
       await catcher.close();

@@ -1,0 +1,99 @@
+// A drainage job interrupted while the worker stores its artifacts (jobs/handlers/run-job.ts writes them to the
+// object store after the analysis thread ends): cancelled there, it leaves no object and no result row; its worker
+// SIGKILLed there, the retry ends with exactly one set of artifacts. On a stack of this suite's own
+// (tests/setup/stack.ts startExtraStack), so killing its worker leaves the shared stack alone.
+import { readFileSync } from "node:fs";
+import type { ChildProcess } from "node:child_process";
+import pg from "pg";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { ADMIN } from "@/tests/integration/client";
+import { fbmDem, sha256 } from "@/tests/integration/data-helpers";
+import { extraClient } from "@/tests/integration/extra-client";
+import { spawnWorker, stopChild } from "@/scripts/stack";
+import { startExtraStack, type ExtraStack } from "@/tests/setup/stack";
+
+let app: ExtraStack;
+let c: ReturnType<typeof extraClient>;
+let pool: pg.Pool;
+let replacement: ChildProcess | null = null;
+let key = "";
+let dem = "";
+
+const finished = (j: { status: string }) => ["succeeded", "failed", "cancelled"].includes(j.status);
+const rows = async (sqlText: string, jobId: string) => Number((await pool.query(sqlText, [jobId])).rows[0].n);
+
+async function storedKeys(jobId: string): Promise<string[]> {
+  const keys: string[] = [];
+  for await (const k of c.store().list(`jobs/${jobId}/`)) keys.push(k);
+  return keys.sort();
+}
+
+/** Polls the store every 10 ms until the job's first artifact object exists; fails if the job ends first. */
+async function untilFirstArtifact(jobId: string, timeoutMs = 180_000): Promise<string[]> {
+  const deadline = Date.now() + timeoutMs;
+  let polls = 0;
+  for (;;) {
+    const keys = await storedKeys(jobId);
+    if (keys.length > 0) return keys;
+    // every 20th poll (200 ms) also reads the job, so a job that ends without artifacts fails fast
+    if (++polls % 20 === 0 && finished(await c.getJob(key, jobId))) throw new Error(`job ${jobId} ended before any artifact was stored`);
+    if (Date.now() > deadline) throw new Error(`no artifact of job ${jobId} within ${timeoutMs} ms`);
+    await new Promise((r) => setTimeout(r, 10));
+  }
+}
+
+beforeAll(async () => {
+  app = await startExtraStack("artifacts", {});
+  c = extraClient(app);
+  pool = new pg.Pool({ connectionString: app.env.DATABASE_URL, max: 1 });
+  key = await c.createKey(await c.signIn(ADMIN), ["datasets:write", "jobs:write", "jobs:read", "results:read"], "interrupted artifacts");
+  // 2048² cells: accumulation, order and basin GeoTIFFs of several MiB each, so storing them takes a while
+  dem = await c.upload(key, readFileSync(await fbmDem(2048)), "image/tiff", "fbm-2048.tif");
+});
+
+afterAll(async () => {
+  if (replacement) await stopChild(replacement);
+  await pool?.end();
+  await app?.stop();
+});
+
+describe("interrupted while the artifacts are stored (issue 6)", () => {
+  it("cancelled after its first artifact object exists: ends cancelled, the store holds none of its objects, no result or feature rows remain", async () => {
+    const job = await c.submit(key, { dataset: dem, kind: "drainage", params: { channelThreshold: { method: "area", km2: 0.5 } } });
+    const atCancel = await untilFirstArtifact(job.id);
+    const res = await c.call(`/api/v1/jobs/${job.id}/cancel`, { method: "POST", key });
+    expect(res.status).toBe(202);
+    const done = await c.waitForJob(key, job.id, finished, 60_000);
+    console.log(`cancelled with ${atCancel.length} artifact object(s) already stored: ${atCancel.map((k) => k.split("/").at(-1)).join(", ")}`);
+    // a partial set existed when the cancel came, so "gone" below is about objects that were really written
+    expect(atCancel.length).toBeGreaterThan(0);
+    expect(done.status).toBe("cancelled");
+    expect(await storedKeys(job.id)).toEqual([]);
+    expect(await rows("SELECT count(*) AS n FROM job_results WHERE job_id = $1", job.id)).toBe(0);
+    expect(await rows("SELECT count(*) AS n FROM network_features WHERE job_id = $1", job.id)).toBe(0);
+    expect((await c.call(`/api/v1/jobs/${job.id}/artifacts`, { key })).status).toBe(409);
+  });
+
+  it("its worker SIGKILLed after its first artifact object exists: the retry succeeds with exactly one set of artifacts", async () => {
+    const job = await c.submit(key, { dataset: dem, kind: "drainage", params: { channelThreshold: { method: "area", km2: 0.25 } } });
+    const atKill = await untilFirstArtifact(job.id);
+    process.kill(app.workerPid, "SIGKILL");
+    expect(atKill.length).toBeGreaterThan(0);
+    // a short stale time so the replacement takes the dead worker's job over within seconds
+    replacement = spawnWorker({ ...app.env, RILLSCALE_JOB_STALE_SECONDS: "5" }, () => undefined);
+    const done = await c.waitForJob(key, job.id, finished, 240_000);
+    expect(done.status, JSON.stringify(done.error)).toBe("succeeded");
+    expect(done.attempts).toBe(2);
+    expect(await rows("SELECT count(*) AS n FROM job_results WHERE job_id = $1", job.id)).toBe(1);
+    expect(await rows("SELECT count(*) AS n FROM audit_events WHERE action = 'job.succeeded' AND target = 'job:' || $1", job.id)).toBe(1);
+    const listed = (await (await c.call(`/api/v1/jobs/${job.id}/artifacts`, { key })).json()) as { items: { name: string; sha256: string }[] };
+    const stored = await storedKeys(job.id);
+    // one object per listed artifact, no leftovers of the killed attempt, and each object is the one listed
+    expect(stored.map((k) => k.split("/").at(-1)).sort()).toEqual(listed.items.map((a) => a.name).sort());
+    for (const k of atKill) expect(stored).toContain(k); // the killed attempt's objects were overwritten in place
+    for (const a of listed.items) {
+      const res = await c.call(`/api/v1/jobs/${job.id}/artifacts/${a.name}`, { key });
+      expect(sha256(new Uint8Array(await res.arrayBuffer())), a.name).toBe(a.sha256);
+    }
+  });
+});
