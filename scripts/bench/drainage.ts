@@ -251,7 +251,7 @@ export async function main(argv: string[]): Promise<number> {
       },
       notes: [
         ...notes,
-        "conditioning = Priority-Flood (plain queue, slope tracing) + flat resolution; the native fill is Priority-Flood+epsilon, which needs no flat step",
+        "conditioning = Priority-Flood (plain queue, slope tracing; it marks the cells the flat resolution tests) + flat resolution; the native fill is Priority-Flood+epsilon, which needs no flat step",
         "ordering = links from the D8 grid (lib/network/from-raster) + Strahler order of links; the native orders cells",
         "cpuSeconds: user + system CPU of our comparable stages against the whole native process (its file read included); wall-clock ratios are the target's measure but swing with the machine's load",
       ],
