@@ -73,6 +73,9 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   //    after marks it then. The flats are counted on the way by joining runs of flat cells that touch
   //    the runs of the row above.
   const runs = new FlatRuns(w);
+  // Room for every candidate, so the high edges go into the queue as they are found (in row order).
+  const queue = new Int32Array(countBits(candidates));
+  let tail = 0;
   let flatCells = 0;
   for (let y = 1; y < h - 1; y++) {
     if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
@@ -102,6 +105,7 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
         }
         if (flat) {
           state[i] = ~((higher ? 1 : NOT_REACHED) | (wayOut ? WAY_OUT : 0));
+          if (higher) queue[tail++] = i;
           flatCells++;
           runs.add(i - row);
         } else {
@@ -122,17 +126,6 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   //    Flat cells are interior, so their eight offsets never leave the grid. Cells with a way out are
   //    gathered at the front of the queue, behind its head, as they are passed: they start step 3.
   //    Breadth-first steps do not depend on the order of the starting cells.
-  const queue = new Int32Array(flatCells);
-  let tail = 0;
-  for (let wi = 0; wi < words; wi++) {
-    let word = candidates[wi];
-    while (word !== 0) {
-      const low = word & -word;
-      word ^= low;
-      const i = (wi << 5) + 31 - Math.clz32(low);
-      if ((~state[i] & ~WAY_OUT) === 1) queue[tail++] = i;
-    }
-  }
   let maxAway = 0;
   let wayOuts = 0;
   for (let head = 0; head < tail; head++) {
@@ -225,6 +218,18 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
     }
   }
   return { ...result, unresolvedFlats, unresolvedCells, maxIncrement };
+}
+
+/** Number of bits set in a bit set: population count by halves (Warren 2012, Hacker's Delight, 2nd ed., §5-1). */
+function countBits(set: Int32Array): number {
+  let count = 0;
+  for (let i = 0; i < set.length; i++) {
+    let v = set[i];
+    v = v - ((v >>> 1) & 0x55555555);
+    v = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+    count += (Math.imul((v + (v >>> 4)) & 0x0f0f0f0f, 0x01010101) >>> 24);
+  }
+  return count;
 }
 
 /** A bit set holding every interior cell of a w × h grid (the cells that can be flat). */
