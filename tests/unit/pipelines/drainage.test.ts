@@ -11,6 +11,7 @@ import { projectedCellGeometry } from "@/lib/raster/cell-geometry";
 import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import { main as analyzeDrainage } from "@/scripts/analyze/drainage";
 import { expectClose } from "@/tests/helpers/expect-close";
+import { fixture } from "@/tests/unit/raster/gdal-reference";
 
 const CELL_M = 10;
 const UTM33 = crsFromEpsg(32633);
@@ -261,10 +262,11 @@ describe("drainageParamsSchema", () => {
   });
 });
 
-const JACKSBORO = path.resolve("tests/fixtures/cache/debian/jacksboro.tif");
-describe.skipIf(!existsSync(JACKSBORO))("runDrainage() on the Jacksboro fault DEM (tests/fixtures/fetch.sh)", () => {
+// never skipped: a missing fixture fails here with a message naming tests/fixtures/fetch.sh (fixtures README)
+describe("runDrainage() on the Jacksboro fault DEM (tests/fixtures/fetch.sh)", () => {
+  const jacksboro = () => fixture("debian/jacksboro.tif"); // resolved inside each test, so only these fail
   it("at 0.35 km² gives R_B and R_L in the natural ranges and D in [1.5, 2]", async () => {
-    const { summary } = await runDrainage({ demPath: JACKSBORO, outDir: tmp() }, { channelThreshold: { method: "area", km2: 0.35 } });
+    const { summary } = await runDrainage({ demPath: jacksboro(), outDir: tmp() }, { channelThreshold: { method: "area", km2: 0.35 } });
     const rb = summary.horton.bifurcationRatio!.value, rl = summary.horton.lengthRatio!.value;
     expect(rb).toBeGreaterThanOrEqual(3); // R_B 3–5 (confirmed in secondary sources; Werner 1970)
     expect(rb).toBeLessThanOrEqual(5);
@@ -274,8 +276,8 @@ describe.skipIf(!existsSync(JACKSBORO))("runDrainage() on the Jacksboro fault DE
     expect(summary.dimension!.raw).toBeLessThanOrEqual(2);
   });
   it("writes GeoTIFFs with the input's CRS and extent, as gdalinfo reads them", async () => {
-    const { artifacts } = await runDrainage({ demPath: JACKSBORO, outDir: tmp() }, { channelThreshold: { method: "area", km2: 0.35 } });
-    const input = gdalJson(JACKSBORO);
+    const { artifacts } = await runDrainage({ demPath: jacksboro(), outDir: tmp() }, { channelThreshold: { method: "area", km2: 0.35 } });
+    const input = gdalJson(jacksboro());
     for (const a of artifacts.filter((x) => x.path)) {
       const info = gdalJson(a.path!);
       expect(info.size).toEqual(input.size);
