@@ -72,7 +72,8 @@ export const drainageParamsSchema = z.object({
   epsilonFill: z.boolean().default(false).describe("fill depressions with a minimal gradient instead of resolving flats without altering elevations; default false"),
   band: z.number().int().min(1).max(65535).optional().describe("1-based band of the GeoTIFF; required when it has several"),
   epsg: z.number().int().min(1024).max(32767).optional().describe("EPSG code of the DEM's CRS, when the file lacks one or states it wrongly"),
-  zFactor: z.number().refine((v) => Number.isFinite(v) && v !== 0, "must be finite and non-zero").optional().describe("factor applied to elevations after the vertical unit is converted to metres; default 1"),
+  // a negative factor would turn the DEM upside down (ridges become channels); zod's number is finite
+  zFactor: z.number().gt(0).optional().describe("dimensionless factor applied to elevations after the vertical unit is converted to metres; finite, > 0; default 1"),
   basins: basinSelection.default({ mode: "all" }).describe("which basins the statistics cover; default all"),
   excludeHighestOrder: z.boolean().default(false).describe("leave the highest Strahler order out of the Horton fits; default false"),
   hackMinAreaKm2: z.number().min(0).max(1e5).default(0).describe("fit Hack's law only over sub-basins at least this large, km²; default 0"),

@@ -3,7 +3,7 @@ import { execFileSync } from "node:child_process";
 import { existsSync, mkdtempSync, readFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import { drainageParamsSchema, runDrainage, type DrainageParams } from "@/lib/pipelines/drainage";
+import { drainageParamsSchema, runDrainage, type DrainageArtifact, type DrainageParams } from "@/lib/pipelines/drainage";
 import { readDem, type Dem } from "@/lib/raster/read-geotiff";
 import { crsFromEpsg } from "@/lib/raster/crs";
 import { makeGrid } from "@/lib/raster/grid";
@@ -286,5 +286,41 @@ describe("runDrainage() on the Jacksboro fault DEM (tests/fixtures/fetch.sh)", (
       expect(info.cornerCoordinates).toEqual(input.cornerCoordinates);
     }
     expect(readFileSync(artifacts.find((a) => a.name === "strahler-order.tif")!.path!).length).toBeGreaterThan(0);
+  });
+});
+
+describe("runDrainage() zFactor", () => {
+  it("refuses a zero, negative or NaN zFactor with an issue naming the field (a negative one turns the DEM upside down; derived)", async () => {
+    for (const zFactor of [0, -1, Number.NaN, Number.POSITIVE_INFINITY]) {
+      const r = drainageParamsSchema.safeParse({ zFactor });
+      expect(r.success, String(zFactor)).toBe(false);
+      expect(r.error!.issues.map((i) => i.path.join("."))).toContain("zFactor");
+      await expect(runDrainage({ demPath: "unused.tif", outDir: tmp() }, { zFactor })).rejects.toThrow(/zFactor/);
+    }
+    expect(drainageParamsSchema.shape.zFactor.description).toMatch(/> 0/);
+  });
+
+  it("with zFactor 2 doubles every link's drop and slope and leaves orders, counts and lengths as they were (derived: D8, the fill and the flats are unchanged by a positive scale)", async () => {
+    const dir = tmp(), demPath = path.join(dir, "dem.tif");
+    const dem = grownTerrain(32, 11);
+    await writeGeoTiff(demPath, dem.elevation, dem.georef);
+    const params: DrainageParams = { channelThreshold: { method: "area", km2: 0.0015 } };
+    const links = (a: DrainageArtifact[]) =>
+      JSON.parse(new TextDecoder().decode(a.find((x) => x.name === "streams.geojson")!.bytes!)).features.map((f: { properties: Record<string, number> }) => f.properties);
+    const one = await runDrainage({ demPath, outDir: tmp() }, params);
+    const two = await runDrainage({ demPath, outDir: tmp() }, { ...params, zFactor: 2 });
+    const a = links(one.artifacts), b = links(two.artifacts);
+    expect(a.length).toBeGreaterThan(5);
+    expect(b).toHaveLength(a.length);
+    expect(a.some((p: Record<string, number>) => p.dropM > 0)).toBe(true);
+    a.forEach((p: Record<string, number>, i: number) => {
+      expect(b[i].order).toBe(p.order);
+      expect(b[i].magnitude).toBe(p.magnitude);
+      expectClose(b[i].lengthM, p.lengthM, 1e-12);
+      expectClose(b[i].dropM, 2 * p.dropM, 1e-9); // × 2 is exact in Float32
+      if (p.slope !== null) expectClose(b[i].slope, 2 * p.slope, 1e-9);
+    });
+    expect(two.summary.horton.table.map((r) => r.streamCount)).toEqual(one.summary.horton.table.map((r) => r.streamCount));
+    one.summary.horton.table.forEach((r, i) => expectClose(two.summary.horton.table[i].meanLengthM, r.meanLengthM, 1e-12));
   });
 });
