@@ -12,6 +12,8 @@ import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import { main as analyzeDrainage } from "@/scripts/analyze/drainage";
 import { expectClose } from "@/tests/helpers/expect-close";
 import { fixture } from "@/tests/unit/raster/gdal-reference";
+import { countingSignal } from "@/tests/unit/hydro/counting-signal";
+import { ABORT_CHECK_CELLS } from "@/lib/hydro/cancellation";
 
 const CELL_M = 10;
 const UTM33 = crsFromEpsg(32633);
@@ -322,5 +324,31 @@ describe("runDrainage() zFactor", () => {
     });
     expect(two.summary.horton.table.map((r) => r.streamCount)).toEqual(one.summary.horton.table.map((r) => r.streamCount));
     one.summary.horton.table.forEach((r, i) => expectClose(two.summary.horton.table[i].meanLengthM, r.meanLengthM, 1e-12));
+  });
+});
+
+describe("runDrainage() cancelled inside a stage", () => {
+  it("stops inside the fill's loop, before the next stage, with the signal's reason (derived: ABORT_CHECK_CELLS)", async () => {
+    // just over two check periods of cells, so the fill's loop checks the signal at least twice
+    const side = Math.ceil(Math.sqrt(2.1 * ABORT_CHECK_CELLS));
+    const dem = grownTerrain(64, 5);
+    const big = new Float32Array(side * side);
+    for (let y = 0; y < side; y++) for (let x = 0; x < side; x++) big[y * side + x] = dem.elevation.data[(y % 64) * 64 + (x % 64)] + 0.01 * y;
+    const probe = countingSignal();
+    let armedAt = -1;
+    const stages: string[] = [];
+    const run = runDrainage({ dem: demOf(big, side, side), outDir: tmp() }, { channelThreshold: { method: "area", km2: 1 } }, {
+      signal: probe.signal,
+      onProgress: (s) => {
+        stages.push(s);
+        // after the first stage ("read") hands over to "fill": its entry check, then the first in-loop check aborts
+        if (s === "fill") { armedAt = probe.checks; probe.abortAt = probe.checks + 2; }
+      },
+    });
+    await expect(run).rejects.toThrow(probe.reason);
+    expect(armedAt).toBeGreaterThan(0);
+    expect(probe.checks).toBe(armedAt + 2);
+    expect(probe.stackAtAbort).toMatch(/priorityFlood/); // the check was the fill's own, not the stage boundary's
+    expect(stages).toEqual(["read", "fill"]);
   });
 });
