@@ -19,7 +19,8 @@ export interface D8Options {
  * E/W: dx of the row. N/S: half the height of each of the two rows (the meridian arc between the
  * centres; exact for any per-row geometry). Diagonals: √(dx̄² + dy²) with dx̄ the mean width of the two
  * rows, i.e. the width at their shared boundary to first order; on geographic grids this planar step
- * differs from the geodesic by a relative O(Δφ²), far below the drop differences D8 compares. On a
+ * differs from the geodesic by a relative O(Δφ²) (under 1e-10 on 1″ and 3″ rows up to 70°, against
+ * geographiclib in the tests), far below the drop differences D8 compares. On a
  * projected grid every value is exact. At the first and last row the missing neighbour row is taken
  * to be like the row itself (no cell is ever entered there).
  */

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
+import geodesicModule from "geographiclib-geodesic";
 import { makeGrid } from "@/lib/raster/grid";
-import { projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
+import { geographicCellGeometry, projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
 import { d8Directions, d8StepLengths } from "@/lib/hydro/d8";
 import { NO_FLOW } from "@/lib/hydro/neighbours";
 import { priorityFlood } from "@/lib/hydro/priority-flood";
@@ -148,4 +149,31 @@ describe("d8StepLengths()", () => {
     expect(Array.from(s.filter((_, k) => k % 2 === 0))).toEqual([30, 30, 30, 30]);
     for (let k = 1; k < 8; k += 2) expectClose(s[k], 30 * Math.SQRT2, 1e-12);
   });
+});
+
+const { Geodesic } = geodesicModule as unknown as {
+  Geodesic: { WGS84: { Inverse(lat1: number, lon1: number, lat2: number, lon2: number): { s12: number } } };
+};
+
+describe("d8StepLengths() on geographic rows against geographiclib-geodesic (Karney 2013)", () => {
+  // Tolerance, derived: the planar steps differ from the geodesic by a relative O(Δφ²) (d8StepLengths'
+  // comment), Δφ² = 2.1e-10 for 3″ and 2.4e-11 for 1″ cells; the cell-centre latitudes, held in degrees,
+  // carry a rounding of about ε·φ/Δφ ≈ 6e-11 of a 1″ step at 70°. 1e-9 is a few times both, and a
+  // diagonal that used one row's width instead of the two rows' mean would miss it by ~1e-5 at 45°–70°.
+  const REL = 1e-9;
+  for (const seconds of [1, 3]) {
+    for (const lat of [0, 45, 70]) {
+      it(`matches the geodesic between cell centres on ${seconds}″ rows at ${lat}° in all eight directions (relative ${REL})`, () => {
+        const d = seconds / 3600, origin = lat + 1.5 * d; // three rows, the middle one centred on lat
+        const steps = d8StepLengths(geographicCellGeometry(3, origin, d, d), 1);
+        const centreLat = (row: number) => origin - (row + 0.5) * d;
+        // codes 0–7 = E, SE, S, SW, W, NW, N, NE; rows go south (lib/hydro/neighbours.ts)
+        const to: [number, number][] = [[1, 0], [1, 1], [0, 1], [-1, 1], [-1, 0], [-1, -1], [0, -1], [1, -1]];
+        to.forEach(([dx, dy], k) => {
+          const geodesic = Geodesic.WGS84.Inverse(centreLat(1), 0, centreLat(1 + dy), dx * d).s12;
+          expectClose(steps[k] / geodesic, 1, REL);
+        });
+      });
+    }
+  }
 });
