@@ -14,6 +14,7 @@ import { expectClose } from "@/tests/helpers/expect-close";
 import { fixture } from "@/tests/unit/raster/gdal-reference";
 import { countingSignal } from "@/tests/unit/hydro/counting-signal";
 import { ABORT_CHECK_CELLS } from "@/lib/hydro/cancellation";
+import { linearRegression } from "@/lib/stats/linear-regression";
 
 const CELL_M = 10;
 const UTM33 = crsFromEpsg(32633);
@@ -350,5 +351,76 @@ describe("runDrainage() cancelled inside a stage", () => {
     expect(probe.checks).toBe(armedAt + 2);
     expect(probe.stackAtAbort).toMatch(/priorityFlood/); // the check was the fill's own, not the stage boundary's
     expect(stages).toEqual(["read", "fill"]);
+  });
+});
+
+describe("runDrainage() options", () => {
+  const params: DrainageParams = { channelThreshold: { method: "area", km2: 0.0015 } };
+  const streams = (a: DrainageArtifact[]) =>
+    JSON.parse(new TextDecoder().decode(a.find((x) => x.name === "streams.geojson")!.bytes!)).features.map((f: { properties: { areaM2: number } }) => f.properties);
+
+  it("epsilonFill says so in the summary, raises a plateau by at most its side × one Float32 step and still accumulates exactly the valid area (derived; invariant)", async () => {
+    // a stepped pyramid, z = cells to the nearest edge, cut off at 17: every cell off the top has a lower
+    // neighbour towards the edge, and the top is a 6 × 6 plateau whose 4 × 4 inner cells are flat.
+    // Flat resolution leaves it as it is; the epsilon fill lifts each inner cell by one Float32 step per
+    // cell of distance from the rim, so by less than the plateau's side (6) steps.
+    const size = 40, z = new Float32Array(size * size);
+    for (let y = 0; y < size; y++) for (let x = 0; x < size; x++) z[y * size + x] = Math.min(x, y, size - 1 - x, size - 1 - y, 17);
+    const dem = demOf(z, size, size);
+    const step = 2 ** (Math.floor(Math.log2(17)) - 23); // one unit in the last place of a Float32 at 17 m
+    const oneCell = { channelThreshold: { method: "area", km2: 1e-4 } } as const; // every outlet cell ends a link
+    const flat = await runDrainage({ dem, outDir: tmp() }, oneCell);
+    const eps = await runDrainage({ dem, outDir: tmp() }, { ...oneCell, epsilonFill: true });
+    expect(flat.summary.conditioning.method).toBe("priority-flood-with-flat-resolution");
+    expect(flat.summary.conditioning.cellsRaised).toBe(0); // Barnes et al. 2014: flats resolved without altering elevations
+    expect(flat.summary.conditioning.flatCells).toBe(16); // the plateau's 4 × 4 inner cells
+    expect(flat.summary.conditioning.flats).toBe(1);
+    expect(eps.summary.conditioning.method).toBe("priority-flood-epsilon");
+    expect(eps.summary.conditioning.flatCells).toBe(0);
+    expect(eps.summary.conditioning.cellsRaised).toBe(16);
+    expect(eps.summary.conditioning.maxRaiseM).toBeGreaterThan(0);
+    expect(eps.summary.conditioning.maxRaiseM).toBeLessThanOrEqual(6 * step); // flat length × ε (derived)
+    for (const run of [flat, eps]) {
+      expect(run.summary.input.validCells).toBe(size * size);
+      expectClose(run.summary.drainageDensity.basinAreaKm2, (size * size * CELL_M * CELL_M) / 1e6, 1e-12); // invariant
+    }
+  });
+
+  it("excludeHighestOrder fits one order fewer, and R_B is the least-squares fit of ln N on order over the rest (derived)", async () => {
+    const dem = grownTerrain(48, 7);
+    const all = await runDrainage({ dem, outDir: tmp() }, params);
+    const cut = await runDrainage({ dem, outDir: tmp() }, { ...params, excludeHighestOrder: true });
+    const top = all.summary.horton.highestOrder;
+    expect(top).toBe(3); // this seeded surface has orders 1–3, so the cut fit is over orders 1 and 2 alone
+    expect(cut.summary.horton.table).toEqual(all.summary.horton.table); // the table keeps every order
+    expect(all.summary.horton.ordersUsed).toHaveLength(top);
+    expect(cut.summary.horton.ordersUsed).toHaveLength(top - 1);
+    expect(cut.summary.horton.bifurcationRatio!.ordersUsed).toEqual(all.summary.horton.bifurcationRatio!.ordersUsed.slice(0, -1));
+    const rb = (rows: { order: number; streamCount: number }[]) =>
+      Math.exp(-linearRegression(rows.map((r) => r.order), rows.map((r) => Math.log(r.streamCount))).slope);
+    const table = all.summary.horton.table;
+    expectClose(all.summary.horton.bifurcationRatio!.value, rb(table), 1e-12);
+    expectClose(cut.summary.horton.bifurcationRatio!.value, rb(table.slice(0, -1)), 1e-12);
+    expect(cut.summary.horton.bifurcationRatio!.value).not.toBe(all.summary.horton.bifurcationRatio!.value);
+    // by hand over orders 1 and 2 alone: the line through two points has slope ln N₂ − ln N₁, so R_B = N₁/N₂ (derived)
+    expectClose(rb(table.slice(0, 2)), table[0].streamCount / table[1].streamCount, 1e-12);
+    expectClose(cut.summary.horton.bifurcationRatio!.value, table[0].streamCount / table[1].streamCount, 1e-12);
+  });
+
+  it("hackMinAreaKm2 fits only the sub-basins at least that large: fewer as the bound rises, one per link above it (derived)", async () => {
+    const dem = grownTerrain(48, 7);
+    const bounds = [0, 0.002, 0.005, 0.01, 0.02];
+    const runs = await Promise.all(bounds.map((b) => runDrainage({ dem, outDir: tmp() }, { ...params, hackMinAreaKm2: b })));
+    const fitted = runs.map((r) => r.summary.hack?.pointsFitted ?? 0);
+    const links = streams(runs[0].artifacts);
+    fitted.forEach((n, i) => {
+      if (i > 0) expect(n, `bound ${bounds[i]}`).toBeLessThanOrEqual(fitted[i - 1]);
+      if (runs[i].summary.hack) {
+        expect(n).toBe(links.filter((l: { areaM2: number }) => l.areaM2 >= bounds[i] * 1e6).length);
+        expect(runs[i].summary.hack!.minAreaKm2).toBeGreaterThanOrEqual(bounds[i]);
+      }
+    });
+    expect(fitted[0]).toBe(runs[0].summary.network.links); // bound 0: every link with an area
+    expect(fitted.at(-1)!).toBeLessThan(fitted[0]);
   });
 });
