@@ -1,8 +1,9 @@
 // Runs untrusted-input work in a child Node process that the parent can always stop: a V8 heap limit
 // (--max-old-space-size), an RSS watchdog reading VmRSS from /proc/<pid>/status (proc(5)), and a wall-clock
 // deadline, both enforced with SIGKILL, which the child cannot catch or delay (POSIX signal.h).
-import { spawn } from "node:child_process";
+import { spawn, type ChildProcess } from "node:child_process";
 import { existsSync } from "node:fs";
+import type { Socket } from "node:net";
 import { readFile } from "node:fs/promises";
 import path from "node:path";
 import { READY, type SandboxReply } from "@/lib/ingest/sandbox-child";
@@ -98,8 +99,12 @@ export interface SandboxOptions {
   /** Directory holding package.json, tsconfig.json and node_modules/tsx; the child runs there. Defaults to the
    *  working directory, which is the project root under `next start`, the worker and vitest alike. */
   projectRoot?: string;
-  /** Shared cap on concurrent children; the deadline starts when the child is spawned, not while waiting. */
+  /** Shared cap on concurrent children; the deadline starts when the child is given its request, not while waiting. */
   slots?: SandboxSlots;
+  /** Keep one more child of this entry started and idle, for the next run: Node's and tsx's start-up and the
+   *  entry's module loading (most of a small inspection's time, seconds on a busy machine) happen before the
+   *  file arrives. Each child still serves exactly one request and is killed after it. */
+  keepSpare?: boolean;
 }
 
 async function readRssBytes(pid: number): Promise<number | null> {
@@ -132,24 +137,108 @@ export function runInSandbox<T>(
   const root = path.resolve(options.projectRoot ?? process.cwd());
   const entryPath = path.resolve(root, entry);
   if (!existsSync(entryPath)) throw new Error(`sandbox entry ${entryPath} does not exist`);
-  if (!options.slots) return spawnChild<T>(root, entryPath, request, l);
-  return options.slots.acquire().then((release) => spawnChild<T>(root, entryPath, request, l).finally(release));
+  const run = () => {
+    if (!options.keepSpare) return serve<T>(startChild(root, entryPath, l.maxOldSpaceMb), request, l);
+    return serve<T>(takeSpare(root, entryPath, l.maxOldSpaceMb), request, l)
+      .finally(() => keepSpareOf(root, entryPath, l.maxOldSpaceMb));
+  };
+  if (!options.slots) return run();
+  return options.slots.acquire().then((release) => run().finally(release));
 }
 
-function spawnChild<T>(root: string, entryPath: string, request: unknown, l: SandboxLimits): Promise<SandboxRun<T>> {
-  const started = performance.now();
+/** A spawned child, from its start: whether it has said it listens, its end, the tail of its stderr. */
+interface StartedChild {
+  child: ChildProcess;
+  /** Resolves when the child reports READY; rejects if it ends or fails to spawn first. */
+  ready: Promise<void>;
+  closed: Promise<{ exitCode: number | null; signal: NodeJS.Signals | null }>;
+  spawnError: Error | null;
+  exited: boolean;
+  stderr: string;
+}
+
+function startChild(root: string, entryPath: string, maxOldSpaceMb: number): StartedChild {
+  const child = spawn(process.execPath, [`--max-old-space-size=${Math.round(maxOldSpaceMb)}`, "--import", "tsx", entryPath], {
+    cwd: root,
+    env: { TSX_TSCONFIG_PATH: path.join(root, "tsconfig.json") } as unknown as NodeJS.ProcessEnv,
+    stdio: ["ignore", "ignore", "pipe", "ipc"],
+    serialization: "advanced", // structured clone: NaN nodata and typed arrays survive, unlike JSON
+  });
+  const started: StartedChild = {
+    child, spawnError: null, exited: false, stderr: "",
+    ready: Promise.resolve(), closed: Promise.resolve({ exitCode: null, signal: null }),
+  };
+  child.stderr!.setEncoding("utf8");
+  child.stderr!.on("data", (s: string) => {
+    started.stderr = (started.stderr + s).slice(-STDERR_TAIL);
+  });
+  started.closed = new Promise((resolve) => {
+    child.once("close", (exitCode, signal) => {
+      started.exited = true;
+      resolve({ exitCode, signal });
+    });
+  });
+  started.ready = new Promise<void>((resolve, reject) => {
+    const onMessage = (message: unknown) => {
+      if (message !== READY) return;
+      child.off("message", onMessage);
+      resolve();
+    };
+    child.on("message", onMessage);
+    // always listened to, so an idle spare that fails cannot throw in the parent
+    child.on("error", (err) => {
+      started.spawnError = err;
+      started.exited = true;
+      reject(err);
+    });
+    void started.closed.then(() => reject(new Error("the sandbox child ended before it was ready")));
+  });
+  started.ready.catch(() => undefined); // observed by serve()
+  return started;
+}
+
+/** Idle spares, one per entry and heap limit. An idle spare holds no slot: it has no input yet. */
+const spares = new Map<string, StartedChild>();
+const spareKey = (root: string, entryPath: string, maxOldSpaceMb: number) => `${root}\0${entryPath}\0${maxOldSpaceMb}`;
+
+function takeSpare(root: string, entryPath: string, maxOldSpaceMb: number): StartedChild {
+  const key = spareKey(root, entryPath, maxOldSpaceMb);
+  const spare = spares.get(key);
+  spares.delete(key);
+  if (!spare || spare.exited) return startChild(root, entryPath, maxOldSpaceMb);
+  refChild(spare.child, true);
+  return spare;
+}
+
+/** The process, its IPC channel and its stderr pipe each hold the parent's event loop open, or not. */
+function refChild(child: ChildProcess, held: boolean): void {
+  for (const handle of [child, child.channel, child.stderr as (Socket | null)]) {
+    if (held) handle?.ref();
+    else handle?.unref();
+  }
+}
+
+/** Starts the next spare once a run is over (not during it, so the two do not share the cores). */
+function keepSpareOf(root: string, entryPath: string, maxOldSpaceMb: number): void {
+  const key = spareKey(root, entryPath, maxOldSpaceMb);
+  if (spares.get(key)?.exited === false) return;
+  const spare = startChild(root, entryPath, maxOldSpaceMb);
+  refChild(spare.child, false); // an idle spare must not keep the parent process alive
+  void spare.closed.then(() => {
+    if (spares.get(key) === spare) spares.delete(key);
+  });
+  spares.set(key, spare);
+}
+
+/** Gives a started child its request under the limits; the deadline and the watchdog start now. */
+function serve<T>(started: StartedChild, request: unknown, l: SandboxLimits): Promise<SandboxRun<T>> {
+  const begun = performance.now();
+  const { child } = started;
 
   return new Promise<SandboxRun<T>>((resolve, reject) => {
-    const child = spawn(process.execPath, [`--max-old-space-size=${Math.round(l.maxOldSpaceMb)}`, "--import", "tsx", entryPath], {
-      cwd: root,
-      env: { TSX_TSCONFIG_PATH: path.join(root, "tsconfig.json") } as unknown as NodeJS.ProcessEnv,
-      stdio: ["ignore", "ignore", "pipe", "ipc"],
-      serialization: "advanced", // structured clone: NaN nodata and typed arrays survive, unlike JSON
-    });
     let reply: SandboxReply | undefined;
     let killedFor: "timeout" | "memory" | undefined;
     let peakRss = 0;
-    let stderr = "";
     let sampling = false;
 
     const kill = (why: "timeout" | "memory") => {
@@ -169,33 +258,36 @@ function spawnChild<T>(root: string, entryPath: string, request: unknown, l: San
       });
     }, l.pollMs);
 
-    child.stderr!.setEncoding("utf8");
-    child.stderr!.on("data", (s: string) => {
-      stderr = (stderr + s).slice(-STDERR_TAIL);
-    });
-    child.on("message", (message: unknown) => {
-      if (message === READY) {
-        child.send(request as never);
-        return;
-      }
-      if (reply || killedFor) return;
+    const onMessage = (message: unknown) => {
+      if (message === READY || reply || killedFor) return;
       reply = message as SandboxReply;
       child.kill("SIGKILL"); // the answer is in; nothing the child does afterwards matters
-    });
-    child.once("error", (err) => {
+    };
+    const stop = () => {
       clearTimeout(deadline);
       clearInterval(watchdog);
-      reject(err);
+      child.off("message", onMessage);
+    };
+    child.on("message", onMessage);
+    started.ready.then(() => {
+      if (!killedFor && child.connected) child.send(request as never);
+    }, () => {
+      // a failed spawn may never emit "close"
+      if (started.spawnError && child.pid === undefined) {
+        stop();
+        reject(started.spawnError);
+      }
     });
-    child.once("close", (exitCode, signal) => {
-      clearTimeout(deadline);
-      clearInterval(watchdog);
-      const elapsedMs = performance.now() - started;
+    void started.closed.then(({ exitCode, signal }) => {
+      stop();
+      const elapsedMs = performance.now() - begun;
       if (killedFor === "memory") return reject(new InspectionMemoryError("rss-cap", l.rssCapMb, peakRss));
       if (killedFor === "timeout") return reject(new InspectionTimeoutError(l.timeoutMs));
       if (reply?.ok) return resolve({ result: reply.result as T, elapsedMs, peakRssBytes: peakRss });
       if (reply) return reject(new InspectionFailedError(reply.error.code, reply.error.detail, reply.error.name));
+      if (started.spawnError) return reject(started.spawnError);
       // No answer: V8 aborts (SIGABRT, or exit 134) with "heap out of memory" when the heap limit is hit.
+      const stderr = started.stderr;
       if (signal === "SIGABRT" || exitCode === 134 || /heap out of memory|Allocation failed/i.test(stderr)) {
         return reject(new InspectionMemoryError("heap-limit", l.maxOldSpaceMb, peakRss));
       }

@@ -58,6 +58,6 @@ export async function inspectUpload(filePath: string, options: InspectUploadOpti
   const request: InspectRequest = {
     kind, path: path.resolve(filePath), epsg: options.epsg, band: options.band, cellBudget: options.cellBudget,
   };
-  const run = await runInSandbox<Inspection>(INSPECT_CHILD_ENTRY, request, options.limits, { slots: INSPECTION_SLOTS, ...options.sandbox });
+  const run = await runInSandbox<Inspection>(INSPECT_CHILD_ENTRY, request, options.limits, { slots: INSPECTION_SLOTS, keepSpare: true, ...options.sandbox });
   return { inspection: run.result, format, elapsedMs: run.elapsedMs, peakRssBytes: run.peakRssBytes };
 }

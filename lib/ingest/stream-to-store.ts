@@ -1,12 +1,13 @@
 // Streaming ingest: SHA-256 (FIPS 180-4) and a byte count taken on the fly while the body goes to a temp file or
 // straight to the store, under a byte limit checked per chunk, so memory stays constant whatever the size.
 import { createHash, randomUUID, type Hash } from "node:crypto";
-import { createWriteStream } from "node:fs";
-import { mkdir, readdir, stat, unlink } from "node:fs/promises";
+import { constants as fsConstants } from "node:fs";
+import { mkdir, open, readdir, stat, unlink, type FileHandle } from "node:fs/promises";
 import path from "node:path";
-import { Transform, type Readable, type TransformCallback } from "node:stream";
-import { pipeline } from "node:stream/promises";
+import { addAbortSignal, Transform, type Readable, type TransformCallback } from "node:stream";
 import { contentKey } from "@/lib/storage/keys";
+import { writeStreamToFile } from "@/lib/storage/pipelined-write";
+import { FollowingHash } from "@/lib/ingest/following-hash";
 import { bodyToReadable, type ObjectBody, type ObjectInfo, type ObjectStore } from "@/lib/storage/object-store";
 
 /** The body went past the limit (→ HTTP 413 Content Too Large, RFC 9110 §15.5.14). */
@@ -28,16 +29,33 @@ export interface IngestLimits {
   signal?: AbortSignal;
 }
 
-/** Pass-through that hashes and counts, and fails on the chunk that crosses the limit. */
+/** Counts bytes and fails on the chunk that crosses the limit. */
+class ByteLimit {
+  bytes = 0;
+  constructor(private readonly limit: number) {}
+  count(chunk: Uint8Array): void {
+    this.bytes += chunk.byteLength;
+    if (this.bytes > this.limit) throw new PayloadTooLargeError(this.limit, this.bytes);
+  }
+}
+
+/** Pass-through that counts under the limit and hashes, in front of a store's put. */
 class HashingMeter extends Transform {
   readonly hash: Hash = createHash("sha256");
-  bytes = 0;
-  constructor(private readonly limit: number) {
+  private readonly counter: ByteLimit;
+  constructor(limit: number) {
     super();
+    this.counter = new ByteLimit(limit);
+  }
+  get bytes(): number {
+    return this.counter.bytes;
   }
   override _transform(chunk: Buffer, _enc: BufferEncoding, done: TransformCallback): void {
-    this.bytes += chunk.length;
-    if (this.bytes > this.limit) return done(new PayloadTooLargeError(this.limit, this.bytes));
+    try {
+      this.counter.count(chunk);
+    } catch (err) {
+      return done(err as Error);
+    }
     this.hash.update(chunk);
     done(null, chunk);
   }
@@ -54,17 +72,18 @@ function checkLimits(limits: IngestLimits): void {
 }
 
 /** Refuses before any read, releasing the source (cancelling a web stream stops an HTTP body). */
-function meterFor(source: Readable, limits: IngestLimits): HashingMeter {
+function refuseEarly(source: Readable, limits: IngestLimits): void {
   try {
     checkLimits(limits);
   } catch (err) {
     source.destroy();
     throw err;
   }
-  return new HashingMeter(limits.maxBytes);
 }
 
 const STAGED_NAME = /^upload-[0-9a-f-]{36}\.part$/;
+/** The mode objects of the local store have, since a staged file may become one by rename. */
+const STAGED_MODE = 0o644;
 
 export interface StagedFile {
   path: string;
@@ -73,19 +92,34 @@ export interface StagedFile {
   size: number;
 }
 
-/** Writes the body to a fresh temp file in tempDir; on any failure (limit, source error, abort) the file is gone. */
+/** Writes the body to a fresh temp file in tempDir; on any failure (limit, source error, abort) the file is gone.
+ *  The request thread only counts and writes (pipelined, flushed to disk as the file grows: so moving it into a
+ *  local store durably costs little more than a rename); the SHA-256 is taken beside it by a thread that reads
+ *  each written stretch back from the page cache (lib/ingest/following-hash.ts). */
 export async function stageToTempFile(body: ObjectBody, tempDir: string, limits: IngestLimits): Promise<StagedFile> {
   const source = bodyToReadable(body);
-  const meter = meterFor(source, limits);
+  refuseEarly(source, limits);
+  const counter = new ByteLimit(limits.maxBytes);
   const file = path.join(tempDir, `upload-${randomUUID()}.part`); // matches STAGED_NAME
+  let handle: FileHandle | undefined;
+  let hasher: FollowingHash | undefined;
   try {
+    if (limits.signal) addAbortSignal(limits.signal, source);
     await mkdir(tempDir, { recursive: true });
-    await pipeline(source, meter, createWriteStream(file, { flags: "wx" }), { signal: limits.signal });
+    handle = await open(file, fsConstants.O_CREAT | fsConstants.O_EXCL | fsConstants.O_WRONLY, STAGED_MODE);
+    const following = new FollowingHash(file);
+    hasher = following;
+    const size = await writeStreamToFile(source, handle, { onChunk: (chunk) => counter.count(chunk), onWritten: (n) => following.advance(n) });
+    await handle.close();
+    handle = undefined;
+    return { path: file, sha256: await following.digest(size), size };
   } catch (err) {
+    source.destroy();
+    hasher?.stop();
+    await handle?.close().catch(() => undefined);
     await unlink(file).catch(() => undefined);
     throw err;
   }
-  return { path: file, sha256: meter.hash.digest("hex"), size: meter.bytes };
 }
 
 /** Removes staged uploads older than maxAgeMs from tempDir (left by a crash between staging and storing);
@@ -123,8 +157,9 @@ export interface StoredContent {
   reused: boolean;
 }
 
-/** Moves a staged file into the store under its content key (`contentKey(sha256, kind)`), then removes the
- *  temp file. Same bytes → same key, so a second upload of identical content is not stored twice. */
+/** Moves a staged file into the store under its content key (`contentKey(sha256, kind)`): a rename when the
+ *  store is local disk on the same filesystem, else an upload; the temp file is gone afterwards either way.
+ *  Same bytes → same key, so a second upload of identical content is not stored twice. */
 export async function storeStaged(
   store: ObjectStore, staged: StagedFile, kind: string, options: { contentType?: string } = {},
 ): Promise<StoredContent> {
@@ -132,7 +167,7 @@ export async function storeStaged(
   try {
     const existing = await store.head(key);
     if (existing && existing.size === staged.size) return { key, info: existing, reused: true };
-    const info = await store.putFile(key, staged.path, options);
+    const info = await store.moveFile(key, staged.path, options);
     return { key, info, reused: false };
   } finally {
     await discardStaged(staged);
@@ -145,7 +180,8 @@ export async function streamToStore(
   body: ObjectBody, store: ObjectStore, key: string, limits: IngestLimits & { contentType?: string },
 ): Promise<{ key: string; sha256: string; size: number; info: ObjectInfo }> {
   const source = bodyToReadable(body);
-  const meter = meterFor(source, limits);
+  refuseEarly(source, limits);
+  const meter = new HashingMeter(limits.maxBytes);
   const onAbort = () => source.destroy(limits.signal?.reason instanceof Error ? limits.signal.reason : new Error("ingest aborted"));
   limits.signal?.addEventListener("abort", onAbort, { once: true });
   source.once("error", (err) => meter.destroy(err));

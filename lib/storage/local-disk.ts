@@ -5,6 +5,7 @@ import { constants as fsConstants, type Stats } from "node:fs";
 import { copyFile, mkdir, open, opendir, rename, rmdir, stat, unlink, type FileHandle } from "node:fs/promises";
 import path from "node:path";
 import { assertKeyPrefix, assertObjectKey } from "@/lib/storage/keys";
+import { writeStreamToFile } from "@/lib/storage/pipelined-write";
 import {
   bodyToReadable, ObjectNotFoundError, resolveRange,
   type ByteRange, type ObjectBody, type ObjectInfo, type ObjectRead, type ObjectStore,
@@ -48,8 +49,8 @@ export class LocalDiskStore implements ObjectStore {
   put(key: string, body: ObjectBody): Promise<ObjectInfo> {
     const source = bodyToReadable(body);
     return this.writeAtomically(key, async (handle) => {
-      // One awaited write per chunk: backpressure without a second stream, and the handle stays ours to sync.
-      for await (const chunk of source) await writeFully(handle, typeof chunk === "string" ? Buffer.from(chunk) : (chunk as Uint8Array));
+      // Writes pipelined with reading, on a handle that stays ours to sync.
+      await writeStreamToFile(source, handle);
     }, () => source.destroy());
   }
 
@@ -57,6 +58,32 @@ export class LocalDiskStore implements ObjectStore {
     return this.writeAtomically(key, async (_handle, tempPath) => {
       await copyFile(localPath, tempPath); // copy_file_range/reflink where the filesystem has it
     });
+  }
+
+  /** rename(2) into place after an fsync of the file, so the object is durable before it is reported stored;
+   *  a file on another filesystem (EXDEV) is copied as putFile does, then removed. */
+  async moveFile(key: string, localPath: string): Promise<ObjectInfo> {
+    const target = this.pathOf(key);
+    const dir = path.dirname(target);
+    await mkdir(dir, { recursive: true });
+    const handle = await open(localPath, "r");
+    let s: Stats;
+    try {
+      await handle.sync(); // fsync works on a read-only descriptor (POSIX fsync(); Linux fsync(2))
+      s = await handle.stat();
+    } finally {
+      await handle.close();
+    }
+    try {
+      await rename(localPath, target);
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== "EXDEV") throw err;
+      const info = await this.putFile(key, localPath);
+      await unlink(localPath);
+      return info;
+    }
+    await syncDirectory(dir);
+    return { size: s.size, etag: etagOf(s) };
   }
 
   /** Fills a fresh temp file beside the target, syncs it, renames it over the target and syncs the directory
@@ -199,14 +226,6 @@ export class LocalDiskStore implements ObjectStore {
         yield key;
       }
     }
-  }
-}
-
-/** write(2) may write less than asked; loop until the chunk is on disk. */
-async function writeFully(handle: FileHandle, bytes: Uint8Array): Promise<void> {
-  for (let off = 0; off < bytes.byteLength; ) {
-    const { bytesWritten } = await handle.write(bytes, off, bytes.byteLength - off);
-    off += bytesWritten;
   }
 }
 

@@ -37,6 +37,9 @@ export interface ObjectStore {
   /** Stores the body under key, replacing any object there atomically; on failure the old object stays. */
   put(key: string, body: ObjectBody, options?: PutOptions): Promise<ObjectInfo>;
   putFile(key: string, localPath: string, options?: PutOptions): Promise<ObjectInfo>;
+  /** Like putFile, and the local file is gone afterwards: the local disk renames it into place when it lies on
+   *  the same filesystem (no second copy of the bytes); other backends upload it, then remove it. */
+  moveFile(key: string, localPath: string, options?: PutOptions): Promise<ObjectInfo>;
   /** Throws ObjectNotFoundError for a missing key, RangeNotSatisfiableError for a range past the end. */
   get(key: string, options?: { range?: ByteRange }): Promise<ObjectRead>;
   head(key: string): Promise<ObjectInfo | null>;

@@ -6,6 +6,7 @@ import {
 } from "@aws-sdk/client-s3";
 import { Upload } from "@aws-sdk/lib-storage";
 import { createReadStream } from "node:fs";
+import { unlink } from "node:fs/promises";
 import { Transform, type Readable } from "node:stream";
 import { assertKeyPrefix, assertObjectKey } from "@/lib/storage/keys";
 import {
@@ -107,6 +108,12 @@ export class S3Store implements ObjectStore {
 
   putFile(key: string, localPath: string, options: PutOptions = {}): Promise<ObjectInfo> {
     return this.put(key, createReadStream(localPath), options);
+  }
+
+  async moveFile(key: string, localPath: string, options: PutOptions = {}): Promise<ObjectInfo> {
+    const info = await this.putFile(key, localPath, options);
+    await unlink(localPath);
+    return info;
   }
 
   async get(key: string, options: { range?: ByteRange } = {}): Promise<ObjectRead> {
