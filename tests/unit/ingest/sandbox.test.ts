@@ -74,6 +74,20 @@ describe("runInSandbox()", () => {
     expect((value as InspectionFailedError).detail).toMatch(/exit 3/);
   });
 
+  it("with keepSpare, the next run is served by a child started before that run began (derived)", async () => {
+    type Up = { uptimeMs: number };
+    const cold = await runInSandbox<Up>(CHILD, { act: "uptime" });
+    // a child spawned for the run has lived no longer than the run
+    expect(cold.result.uptimeMs).toBeLessThanOrEqual(cold.elapsedMs);
+    await runInSandbox<Up>(CHILD, { act: "uptime" }, {}, { keepSpare: true });
+    // the spare is spawned as that run ends; a pause longer than Node's own start before process.uptime() counts
+    await new Promise((r) => setTimeout(r, 500));
+    const warm = await runInSandbox<Up>(CHILD, { act: "uptime" }, {}, { keepSpare: true });
+    expect(warm.result.uptimeMs).toBeGreaterThan(warm.elapsedMs);
+    const failed = await runInSandbox(CHILD, { act: "typed-error" }, {}, { keepSpare: true }).catch((e: unknown) => e);
+    expect(failed).toMatchObject({ code: "corrupt" }); // a spare answers failures exactly as a fresh child does
+  });
+
   it("refuses non-positive limits before spawning anything (derived)", () => {
     expect(() => runInSandbox(CHILD, {}, { timeoutMs: 0 })).toThrow(RangeError);
     expect(() => runInSandbox("tests/unit/ingest/fixtures/no-such-child.ts", {})).toThrow(/does not exist/);

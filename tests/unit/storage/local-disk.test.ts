@@ -1,4 +1,4 @@
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, utimesSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, utimesSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
@@ -8,6 +8,19 @@ const base = mkdtempSync(path.join(tmpdir(), "rillscale-local-"));
 afterAll(() => rmSync(base, { recursive: true, force: true }));
 
 describe("LocalDiskStore", () => {
+  it("moveFile() renames a file of the same filesystem into place: same inode, no copy left behind (POSIX rename())", async () => {
+    const store = new LocalDiskStore({ root: path.join(base, "m") });
+    const staged = path.join(base, "staged.part");
+    writeFileSync(staged, "staged bytes");
+    const inode = statSync(staged).ino;
+    const info = await store.moveFile("datasets/ab/cd/staged", staged);
+    const target = path.join(base, "m", "datasets", "ab", "cd", "staged");
+    expect(existsSync(staged)).toBe(false);
+    expect(statSync(target).ino).toBe(inode);
+    expect(readFileSync(target, "utf8")).toBe("staged bytes");
+    expect(info.size).toBe(12);
+  });
+
   it("keeps each key as a file of the same path under its root, and prunes folders a delete empties (derived)", async () => {
     const store = new LocalDiskStore({ root: path.join(base, "a") });
     await store.put("datasets/ab/cd/x", Buffer.from("x"));
