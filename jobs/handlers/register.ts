@@ -3,18 +3,22 @@
 import { randomUUID } from "node:crypto";
 import { hostname } from "node:os";
 import type PgBoss from "pg-boss";
+import pg from "pg";
 import { db } from "@/db/client";
-import { reclaimStale, runJob, type RunContext } from "@/jobs/handlers/run-job";
+import { prestartThread, reclaimStale, runJob, type RunContext } from "@/jobs/handlers/run-job";
 import { systemClock } from "@/lib/auth/clock";
+import { env } from "@/lib/env";
 import { dataEnv, objectStore } from "@/lib/jobs/config";
 import { purgeExpiredIdempotencyKeys } from "@/lib/jobs/idempotency";
 import { purgeEndedWindows } from "@/lib/jobs/rate-limit";
-import { JOB_KINDS, isJobKind, queueOf } from "@/lib/jobs/kinds";
+import { JOB_KINDS, JOB_QUEUED_CHANNEL, isJobKind, queueOf, type JobKind } from "@/lib/jobs/kinds";
 
 /** A job of an org at its running limit is sent again after this long. */
 const DEFER_SECONDS = 2;
 /** Idle queues are polled this often (pg-boss's default is 2 s): queue overhead stays well under a second. */
 const POLL_SECONDS = 0.5;
+/** A lost LISTEN connection is opened again after this long (the polls go on meanwhile). */
+const RELISTEN_MS = 1_000;
 /** Expired idempotency records and ended rate-limit windows are deleted this often. */
 const PURGE_MS = 3_600_000;
 
@@ -28,13 +32,19 @@ export async function workAnalysisQueues(boss: PgBoss, log: (msg: string) => voi
     db: db(), store: objectStore(), workerId: `${hostname()}:${process.pid}:${randomUUID().slice(0, 8)}`,
     staleSeconds: e.RILLSCALE_JOB_STALE_SECONDS, orgMaxRunning: e.RILLSCALE_ORG_MAX_RUNNING_JOBS,
   };
+  prestartThread();
+  const workers = new Map<string, string>();
   for (const kind of JOB_KINDS) {
-    await boss.work<AnalysisJobData>(queueOf(kind), { pollingIntervalSeconds: POLL_SECONDS }, async ([job]) => {
+    workers.set(kind, await boss.work<AnalysisJobData>(queueOf(kind), { pollingIntervalSeconds: POLL_SECONDS }, async ([job]) => {
       const outcome = await runJob(ctx, job.data.jobId);
       if (outcome === "deferred") await boss.send(queueOf(kind), job.data, { startAfter: DEFER_SECONDS });
       log(`${kind} job ${job.data.jobId}: ${outcome}`);
-    });
+    }));
   }
+  await listenForSubmissions((kind) => {
+    const id = workers.get(kind);
+    if (id) boss.notifyWorker(id);
+  });
   const reap = async () => {
     try {
       for (const j of await reclaimStale(ctx.db, ctx.staleSeconds)) {
@@ -60,4 +70,35 @@ export async function workAnalysisQueues(boss: PgBoss, log: (msg: string) => voi
   // the worker's shutdown ends the process, and these timers with it
   setInterval(() => void reap(), Math.max(1000, (ctx.staleSeconds * 1000) / 2));
   setInterval(() => void purge(), PURGE_MS);
+}
+
+/** LISTEN on a connection of its own (outside the pool, so the pool's shutdown does not wait for it) for the
+ *  submissions' NOTIFY (lib/jobs/submit.ts) and wake the kind's work loop; a lost connection is opened again. */
+async function listenForSubmissions(wake: (kind: JobKind) => void): Promise<void> {
+  const again = (err: Error) => {
+    console.error(`[worker] submission notifications: ${err.message}; listening again shortly`);
+    setTimeout(() => void listen(), RELISTEN_MS).unref();
+  };
+  const listen = async () => {
+    const client = new pg.Client({ connectionString: env().DATABASE_URL, application_name: "rillscale-worker-listen" });
+    let lost = false;
+    const drop = (err: Error) => {
+      if (lost) return;
+      lost = true;
+      void client.end().catch(() => undefined);
+      again(err);
+    };
+    client.on("error", drop);
+    client.on("end", () => drop(new Error("connection ended")));
+    client.on("notification", (n) => {
+      if (n.channel === JOB_QUEUED_CHANNEL && n.payload && isJobKind(n.payload)) wake(n.payload);
+    });
+    try {
+      await client.connect();
+      await client.query(`LISTEN ${JOB_QUEUED_CHANNEL}`);
+    } catch (e) {
+      drop(e as Error);
+    }
+  };
+  await listen();
 }

@@ -10,7 +10,7 @@ import { pathToFileURL } from "node:url";
 import { and, eq, isNull, lt, ne, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { datasets, jobResults, jobs, type JobRow } from "@/db/schema";
-import type { ThreadMessage } from "@/jobs/handlers/thread";
+import type { ThreadJob, ThreadMessage } from "@/jobs/handlers/thread";
 import type { HandlerInput, HandlerOutput } from "@/jobs/handlers/types";
 import { PROBLEM_BASE, PROBLEM_TYPES } from "@/lib/api/problem";
 import { appendAudit } from "@/lib/audit/log";
@@ -29,6 +29,34 @@ const THREAD_ENTRY = pathToFileURL(path.join(process.cwd(), "jobs", "handlers", 
 // the TypeScript entry (the worker process runs from source under `node --import tsx`).
 const THREAD_BOOT = `(async () => { const { register } = await import(${JSON.stringify(import.meta.resolve("tsx/esm/api"))}); register(); await import(${JSON.stringify(THREAD_ENTRY)}); })();`;
 const WORKER_ACTOR = { kind: "system" as const, id: null, label: "job worker" };
+
+/** One analysis thread started ahead of the next job: tsx's registration and the pipelines' modules take most
+ *  of a second (more on a busy machine), paid while the worker is idle instead of inside a job. */
+let spareThread: Worker | null = null;
+
+/** geotiff.js's decoder pool (web-worker) reads `workerData.mod` in any non-main thread to tell whether it is
+ *  one of its own; an object without `mod` tells it that it is not. The job itself comes by message. */
+const startThread = () => new Worker(THREAD_BOOT, { eval: true, workerData: {} });
+
+/** Starts the spare thread if there is none (at boot, and after each job). */
+export function prestartThread(): void {
+  if (spareThread) return;
+  const thread = startThread();
+  thread.unref(); // an idle spare does not keep the worker process alive
+  // a spare that fails to load is dropped; the next job starts its own thread and reports the failure
+  thread.on("error", (e) => console.error(`[worker] spare analysis thread: ${e.message}`));
+  thread.once("exit", () => {
+    if (spareThread === thread) spareThread = null;
+  });
+  spareThread = thread;
+}
+
+function takeThread(): Worker {
+  const thread = spareThread ?? startThread();
+  spareThread = null;
+  thread.ref();
+  return thread;
+}
 
 export interface RunContext {
   db: Db;
@@ -81,7 +109,8 @@ type ThreadEnd = { kind: "done"; output: HandlerOutput } | { kind: "error"; erro
 /** Runs the handler in a thread; each heartbeat writes stage/progress and reads back whether to stop. */
 function runThread(c: RunContext, job: JobRow, input: HandlerInput): Promise<ThreadEnd> {
   return new Promise((resolve) => {
-    const thread = new Worker(THREAD_BOOT, { eval: true, workerData: { kind: job.kind as JobKind, input } });
+    const thread = takeThread();
+    thread.postMessage({ kind: job.kind as JobKind, input } satisfies ThreadJob);
     let stage = "starting", progress = 0, ended = false, writing = false;
     const end = (e: ThreadEnd) => {
       if (ended) return;
@@ -144,6 +173,7 @@ async function finish(c: RunContext, job: JobRow, to: "failed" | "cancelled", er
 }
 
 export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> {
+  const t0 = performance.now();
   const claimed = await claim(c, jobId);
   if ("outcome" in claimed) return claimed.outcome;
   const { job } = claimed;
@@ -153,7 +183,9 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
     const input: HandlerInput = {
       datasetPath: await datasetFile(c.store, dataset.storageKey, outDir), format: dataset.format, params: job.params, outDir,
     };
+    const tThread = performance.now();
     const ended = await runThread(c, job, input);
+    const tStore = performance.now();
     if (ended.kind === "stopped") {
       await removeArtifacts(c.store, job.id);
       if (ended.why === "lost") return "lost";
@@ -165,15 +197,18 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
       await finish(c, job, "failed", failureProblem(job.id, ended.error));
       return "failed";
     }
-    const artifacts: StoredArtifact[] = [];
-    for (const a of ended.output.artifacts) {
+    // all artifacts at once (each put is atomic and synced on its own), the network GeoJSON read meanwhile
+    const stored = Promise.all(ended.output.artifacts.map(async (a): Promise<StoredArtifact> => {
       const key = artifactKey(job.id, a.name);
       const put = await streamToStore(createReadStream(a.path), c.store, key, { maxBytes: Number.MAX_SAFE_INTEGER, contentType: a.mediaType });
-      artifacts.push({ name: a.name, mediaType: a.mediaType, size: put.size, sha256: put.sha256, key });
-    }
+      return { name: a.name, mediaType: a.mediaType, size: put.size, sha256: put.sha256, key };
+    }));
+    stored.catch(() => undefined); // awaited below; a failed read must not leave it unobserved
     // the stream links also go to PostGIS for the feature service (/api/v1/ogc), with the result, atomically
     const lines = ended.output.artifacts.find((a) => a.name === "streams.geojson" || a.name === "network.geojson");
     const linesGeoJson: unknown = lines ? JSON.parse(await readFile(lines.path, "utf8")) : null;
+    const artifacts = await stored;
+    const tCommit = performance.now();
     const done = await c.db.transaction(async (tx) => {
       const now = new Date();
       const [row] = await tx.update(jobs).set({ status: "succeeded", stage: "done", progress: 1, finishedAt: now, updatedAt: now, heartbeatAt: now })
@@ -196,6 +231,9 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
       return "lost";
     }
     await appendAudit(c.db, { orgId: job.orgId, action: "job.succeeded", actor: WORKER_ACTOR, target: `job:${job.id}`, details: { kind: job.kind, artifacts: artifacts.length } }, systemClock);
+    // where a job's time went beyond its pipeline, for the queue-overhead figure of the api bench
+    const s = (a: number, b: number) => ((b - a) / 1000).toFixed(3);
+    console.log(`[worker] job ${job.id} (${job.kind}) seconds: claim+input ${s(t0, tThread)}, thread ${s(tThread, tStore)}, artifacts ${s(tStore, tCommit)}, commit ${s(tCommit, performance.now())}`);
     return "succeeded";
   } catch (e) {
     // our own failure (database, storage): hand the job back so the retry pg-boss makes can claim it
@@ -204,6 +242,7 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
     throw e;
   } finally {
     await rm(outDir, { recursive: true, force: true });
+    prestartThread();
   }
 }
 

@@ -1,7 +1,8 @@
 // Worker-thread entry that runs one job handler. The pipelines compute synchronously between their stages, so
 // they run off the worker's main thread: it stays free to write heartbeats and progress, and a cancel ends the
-// thread at once (Worker.terminate stops even a tight loop).
-import { parentPort, workerData } from "node:worker_threads";
+// thread at once (Worker.terminate stops even a tight loop). The thread is started ahead of its job (modules
+// loaded, waiting for the one message that names the job) and ends after it.
+import { parentPort } from "node:worker_threads";
 import { HANDLERS } from "@/jobs/handlers/index";
 import type { HandlerInput } from "@/jobs/handlers/types";
 import type { JobKind } from "@/lib/jobs/kinds";
@@ -11,10 +12,15 @@ export type ThreadMessage =
   | { type: "done"; output: Awaited<ReturnType<(typeof HANDLERS)[JobKind]>> }
   | { type: "error"; error: { name: string; code: string | null; message: string } };
 
-const { kind, input } = workerData as { kind: JobKind; input: HandlerInput };
+/** The one message a thread receives. */
+export interface ThreadJob {
+  kind: JobKind;
+  input: HandlerInput;
+}
+
 const post = (m: ThreadMessage) => parentPort!.postMessage(m);
 
-HANDLERS[kind](input, { onProgress: (stage, fraction) => post({ type: "progress", stage, fraction }) }).then(
+parentPort!.once("message", ({ kind, input }: ThreadJob) => void HANDLERS[kind](input, { onProgress: (stage, fraction) => post({ type: "progress", stage, fraction }) }).then(
   (output) => post({ type: "done", output }),
   (e: unknown) => {
     const err = e as { name?: unknown; code?: unknown; detail?: unknown; message?: unknown };
@@ -27,4 +33,4 @@ HANDLERS[kind](input, { onProgress: (stage, fraction) => post({ type: "progress"
       },
     });
   },
-);
+));

@@ -23,6 +23,9 @@ export interface SandboxLimits {
  *  vector readers accept (256 MB) parsed; the RSS cap adds room for Buffers and the runtime itself. */
 export const DEFAULT_SANDBOX_LIMITS: SandboxLimits = { timeoutMs: 8_000, maxOldSpaceMb: 1024, rssCapMb: 1536, pollMs: 25 };
 
+/** The next spare child is started this long after a run ends. */
+const SPARE_DELAY_MS = 1_000;
+
 /** Bytes of the child's stderr kept for a crash report (the tail, where the fatal message is). */
 const STDERR_TAIL = 4096;
 
@@ -140,7 +143,7 @@ export function runInSandbox<T>(
   const run = () => {
     if (!options.keepSpare) return serve<T>(startChild(root, entryPath, l.maxOldSpaceMb), request, l);
     return serve<T>(takeSpare(root, entryPath, l.maxOldSpaceMb), request, l)
-      .finally(() => keepSpareOf(root, entryPath, l.maxOldSpaceMb));
+      .finally(() => setTimeout(() => keepSpareOf(root, entryPath, l.maxOldSpaceMb), SPARE_DELAY_MS).unref());
   };
   if (!options.slots) return run();
   return options.slots.acquire().then((release) => run().finally(release));
@@ -218,7 +221,8 @@ function refChild(child: ChildProcess, held: boolean): void {
   }
 }
 
-/** Starts the next spare once a run is over (not during it, so the two do not share the cores). */
+/** Starts the next spare a little after a run is over (not during it or its answer, so the two do not share
+ *  the cores). */
 function keepSpareOf(root: string, entryPath: string, maxOldSpaceMb: number): void {
   const key = spareKey(root, entryPath, maxOldSpaceMb);
   if (spares.get(key)?.exited === false) return;

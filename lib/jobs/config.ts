@@ -11,7 +11,8 @@ export const RATE_WINDOW_SECONDS = 60;
 const DataEnvSchema = storageEnvSchema.extend({
   /** Largest upload accepted; the default is 2 GiB. */
   RILLSCALE_UPLOAD_MAX_BYTES: z.coerce.number().int().min(1).max(1024 * GIB).default(2 * GIB),
-  /** Where uploads are staged while they are hashed and inspected (same filesystem as a local store: a copy is cheap). */
+  /** Where uploads are staged while they are hashed and inspected (on the local store's filesystem, the staged file is
+   *  renamed into place; elsewhere it is copied). */
   RILLSCALE_UPLOAD_TMP: z.string().min(1).default(".data/uploads"),
   /** Jobs of one organisation running at once; more wait in the queue. */
   RILLSCALE_ORG_MAX_RUNNING_JOBS: z.coerce.number().int().min(1).max(1000).default(2),

@@ -44,3 +44,7 @@ export const isJobKind = (k: string): k is JobKind => (JOB_KINDS as readonly str
 
 /** pg-boss queue of a kind: one per kind, so a slow kind cannot starve the others. */
 export const queueOf = (kind: JobKind) => `analysis-${kind}`;
+
+/** PostgreSQL NOTIFY channel on which a submission names its kind, so an idle worker fetches at once instead of
+ *  at its next poll; the poll remains the guarantee (a notification is lost while no worker listens). */
+export const JOB_QUEUED_CHANNEL = "rillscale_job_queued";

@@ -1,7 +1,7 @@
 // Job submission and the job queries: parameters validated by the kind's own schema (defaults applied, then
 // hashed canonically), the result cache (same dataset bytes + kind + parameters + software version → the earlier
 // result, recorded as reused), the queue send, cancel, and the keyset-paginated list.
-import { and, desc, eq, gte, inArray, lt, lte, or, type SQL } from "drizzle-orm";
+import { and, desc, eq, gte, inArray, lt, lte, or, sql, type SQL } from "drizzle-orm";
 import type PgBoss from "pg-boss";
 import type { Db } from "@/db/client";
 import { jobResults, jobs, type JobRow } from "@/db/schema";
@@ -12,7 +12,7 @@ import type { Acting } from "@/lib/datasets/registry";
 import { getDataset } from "@/lib/datasets/registry";
 import { canonicalJson, sha256Hex } from "@/lib/jobs/canonical-json";
 import { decodeCursor, encodeCursor } from "@/lib/jobs/cursor";
-import { KINDS, queueOf, type JobKind } from "@/lib/jobs/kinds";
+import { JOB_QUEUED_CHANNEL, KINDS, queueOf, type JobKind } from "@/lib/jobs/kinds";
 import { SOFTWARE } from "@/lib/jobs/software";
 
 export type JobStatus = JobRow["status"];
@@ -80,6 +80,7 @@ export async function submitJob(db: Db, boss: PgBoss, clock: Clock, acting: Acti
       await db.delete(jobs).where(eq(jobs.id, job.id));
       throw e;
     }
+    await db.execute(sql`SELECT pg_notify(${JOB_QUEUED_CHANNEL}, ${r.kind})`);
   }
   await appendAudit(db, {
     orgId: acting.orgId, action: "job.create", actor: acting.actor, target: `job:${job.id}`, ip: acting.ip,

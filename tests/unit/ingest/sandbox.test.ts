@@ -80,8 +80,9 @@ describe("runInSandbox()", () => {
     // a child spawned for the run has lived no longer than the run
     expect(cold.result.uptimeMs).toBeLessThanOrEqual(cold.elapsedMs);
     await runInSandbox<Up>(CHILD, { act: "uptime" }, {}, { keepSpare: true });
-    // the spare is spawned as that run ends; a pause longer than Node's own start before process.uptime() counts
-    await new Promise((r) => setTimeout(r, 500));
+    // the spare is spawned a second after that run ends (SPARE_DELAY_MS); then a pause longer than Node's own
+    // start before process.uptime() counts
+    await new Promise((r) => setTimeout(r, 1_500));
     const warm = await runInSandbox<Up>(CHILD, { act: "uptime" }, {}, { keepSpare: true });
     expect(warm.result.uptimeMs).toBeGreaterThan(warm.elapsedMs);
     const failed = await runInSandbox(CHILD, { act: "typed-error" }, {}, { keepSpare: true }).catch((e: unknown) => e);
