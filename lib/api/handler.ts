@@ -3,10 +3,9 @@
 // check (decided here, in the handler, never only in middleware) and the one error mapper.
 import "server-only";
 import { randomUUID } from "node:crypto";
-import { eq } from "drizzle-orm";
 import type { z } from "zod";
 import { db, type Db } from "@/db/client";
-import { organisations, type ApiKeyRow, type Organisation } from "@/db/schema";
+import type { ApiKeyRow, Organisation } from "@/db/schema";
 import type { AuditInput } from "@/lib/audit/log";
 import { ApiError, toProblem } from "@/lib/api/problem";
 import { authenticateApiKey, displayPrefix } from "@/lib/auth/api-keys";
@@ -92,9 +91,8 @@ async function authenticate(rc: RequestContext): Promise<{ principal: Principal;
         headers: bearerChallenge(', error="invalid_token"'),
       });
     }
-    const [org] = await rc.db.select().from(organisations).where(eq(organisations.id, check.key.orgId));
     const scopes = check.key.scopes.filter((s): s is Scope => (SCOPES as readonly string[]).includes(s));
-    return { principal: { kind: "api_key", key: check.key, org, scopes, permissions: permissionsOfScopes(scopes) }, refreshedCookie: null };
+    return { principal: { kind: "api_key", key: check.key, org: check.org, scopes, permissions: permissionsOfScopes(scopes) }, refreshedCookie: null };
   }
   const jwt = readCookie(rc.req, sessionCookieName());
   const active = jwt ? await readSession(rc.db, jwt, rc.clock) : null;

@@ -3,9 +3,9 @@
 // checked before any database look-up. Only HMAC-SHA-256(pepper, key) is stored (STANDARDS.md, Keys and limits).
 import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
 import { crc32 } from "node:zlib";
-import { and, desc, eq, isNull, lt, or } from "drizzle-orm";
+import { and, desc, eq, isNull, lt, or, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { apiKeys, type ApiKeyRow } from "@/db/schema";
+import { apiKeys, organisations, type ApiKeyRow, type Organisation } from "@/db/schema";
 import type { Scope } from "@/lib/auth/permissions";
 import type { Clock } from "@/lib/auth/clock";
 
@@ -73,14 +73,17 @@ function sameHash(a: string, b: string | null): boolean {
 
 export type KeyRefusal = "malformed" | "unknown" | "revoked" | "expired" | "grace_over";
 
-export type KeyCheck = { ok: true; key: ApiKeyRow } | { ok: false; reason: KeyRefusal };
+export type KeyCheck = { ok: true; key: ApiKeyRow; org: Organisation } | { ok: false; reason: KeyRefusal };
 
-/** Verifies a presented key: checksum first (no query), then one look-up by id and a constant-time compare. */
+/** Verifies a presented key: checksum first (no query), then one look-up by id (with its organisation, in the
+ *  same query) and a constant-time compare. Nothing is cached: a revoked key is refused on its next request. */
 export async function authenticateApiKey(db: Db, pepper: string, token: string, clock: Clock): Promise<KeyCheck> {
   const parsed = parseKey(token);
   if (!parsed) return { ok: false, reason: "malformed" };
-  const [row] = await db.select().from(apiKeys).where(eq(apiKeys.id, parsed.id));
-  if (!row) return { ok: false, reason: "unknown" };
+  const [found] = await db.select({ key: apiKeys, org: organisations }).from(apiKeys)
+    .innerJoin(organisations, eq(organisations.id, apiKeys.orgId)).where(eq(apiKeys.id, parsed.id));
+  if (!found) return { ok: false, reason: "unknown" };
+  const { key: row, org } = found;
   const now = clock.now();
   const hash = hashKey(pepper, token);
   const current = sameHash(hash, row.secretHash);
@@ -91,13 +94,19 @@ export async function authenticateApiKey(db: Db, pepper: string, token: string, 
   if (previous && !(row.graceUntil && row.graceUntil > now)) return { ok: false, reason: "grace_over" };
   if (!row.lastUsedAt || now.getTime() - row.lastUsedAt.getTime() >= LAST_USED_RESOLUTION_MS) {
     const stale = new Date(now.getTime() - LAST_USED_RESOLUTION_MS);
+    // Asynchronous commit (PostgreSQL 15 manual §30.4; set_config(…, true) holds for this statement's own
+    // transaction): the request does not wait for a WAL flush, and a crash within a fraction of a second may
+    // lose this timestamp, which is only informational.
     await db
       .update(apiKeys)
       .set({ lastUsedAt: now })
-      .where(and(eq(apiKeys.id, row.id), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, stale))));
+      .where(and(
+        eq(apiKeys.id, row.id), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, stale)),
+        sql`set_config('synchronous_commit', 'off', true) IS NOT NULL`,
+      ));
     row.lastUsedAt = now;
   }
-  return { ok: true, key: row };
+  return { ok: true, key: row, org };
 }
 
 export interface NewKey {
