@@ -54,8 +54,8 @@ export const surfaceParamsSchema = z.object({
     .describe("transects in cell coordinates, up to 20; default the middle row and the middle column"),
   band: z.number().int().min(1).max(65535).optional().describe("1-based band of the GeoTIFF; required when it has several"),
   epsg: z.number().int().min(1024).max(32767).optional().describe("EPSG code of the DEM's CRS, when the file lacks one or states it wrongly"),
-  zFactor: z.number().refine((v) => Number.isFinite(v) && v !== 0, "must be finite and non-zero").optional()
-    .describe("factor applied to elevations after the vertical unit is converted to metres; default 1"),
+  zFactor: z.number().gt(0).optional()
+    .describe("dimensionless factor applied to elevations after the vertical unit is converted to metres; finite, > 0; default 1"),
 });
 
 export type SurfaceParams = z.input<typeof surfaceParamsSchema>;

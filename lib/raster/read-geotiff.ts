@@ -204,8 +204,9 @@ function lonLatBox(crs: CrsInfo, t: Georeference["transform"], width: number, he
 function checkOptions(options: ReadDemOptions): number {
   const budget = options.cellBudget ?? DEFAULT_CELL_BUDGET;
   if (!(budget > 0)) throw new RangeError(`cellBudget must be positive, got ${budget}`);
-  if (options.zFactor !== undefined && !(Number.isFinite(options.zFactor) && options.zFactor !== 0)) {
-    throw new RangeError(`zFactor must be a finite non-zero number, got ${options.zFactor}`);
+  // a negative factor would turn the terrain upside down (ridges become valleys): refused, not "supported"
+  if (options.zFactor !== undefined && !(Number.isFinite(options.zFactor) && options.zFactor > 0)) {
+    throw new RangeError(`zFactor must be a finite positive number, got ${options.zFactor}`);
   }
   return budget;
 }

@@ -177,6 +177,10 @@ describe("readDem() options", () => {
     await expect(readDem(file, { band: 4 })).rejects.toMatchObject({ code: "band-required" });
   });
 
+  it.each([0, -1, Number.NaN, Number.POSITIVE_INFINITY])("zFactor %s is refused: it must be finite and positive (derived: a negative one flips the terrain)", async (zFactor) => {
+    await expect(readDem(fixture("variants/base.tif"), { zFactor })).rejects.toThrow(/zFactor must be a finite positive number/);
+  });
+
   it("zFactor scales every elevation and leaves nodata NaN (derived)", async () => {
     const dem = await readDem(fixture("variants/base.tif"), { zFactor: 0.5 });
     expect(mismatches(dem.elevation.data, expected().map((v) => v * 0.5))).toBe(0);
