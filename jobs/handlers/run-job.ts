@@ -172,6 +172,35 @@ async function finish(c: RunContext, job: JobRow, to: "failed" | "cancelled", er
   if (row) await appendAudit(c.db, { orgId: job.orgId, action: `job.${to}`, actor: WORKER_ACTOR, target: `job:${job.id}`, details: { kind: job.kind } }, systemClock);
 }
 
+/** Stores every artifact (each put atomic and synced on its own) and commits the result with the stream links in
+ *  PostGIS, atomically; `done` is false when the job stopped being ours and running meanwhile (cancelled, taken over). */
+async function storeAndCommit(c: RunContext, job: JobRow, output: HandlerOutput) {
+  // all artifacts at once, the network GeoJSON read meanwhile
+  const stored = Promise.all(output.artifacts.map(async (a): Promise<StoredArtifact> => {
+    const key = artifactKey(job.id, a.name);
+    const put = await streamToStore(createReadStream(a.path), c.store, key, { maxBytes: Number.MAX_SAFE_INTEGER, contentType: a.mediaType });
+    return { name: a.name, mediaType: a.mediaType, size: put.size, sha256: put.sha256, key };
+  }));
+  stored.catch(() => undefined); // awaited below; a failed read must not leave it unobserved
+  // the stream links also go to PostGIS for the feature service (/api/v1/ogc), with the result
+  const lines = output.artifacts.find((a) => a.name === "streams.geojson" || a.name === "network.geojson");
+  const linesGeoJson: unknown = lines ? JSON.parse(await readFile(lines.path, "utf8")) : null;
+  const artifacts = await stored;
+  const tCommit = performance.now();
+  const done = await c.db.transaction(async (tx) => {
+    const now = new Date();
+    const [row] = await tx.update(jobs).set({ status: "succeeded", stage: "done", progress: 1, finishedAt: now, updatedAt: now, heartbeatAt: now })
+      .where(and(eq(jobs.id, job.id), eq(jobs.workerId, c.workerId), eq(jobs.status, "running"), isNull(jobs.cancelRequestedAt)))
+      .returning();
+    if (!row) return false;
+    const result = { summary: output.summary, timingsS: output.timingsS, artifacts, softwareVersion: SOFTWARE.version };
+    await tx.insert(jobResults).values({ jobId: job.id, ...result }).onConflictDoUpdate({ target: jobResults.jobId, set: result });
+    if (linesGeoJson !== null) await storeNetworkFeatures(tx, job.id, linesGeoJson);
+    return true;
+  });
+  return { done, artifacts, tCommit };
+}
+
 export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> {
   const t0 = performance.now();
   const claimed = await claim(c, jobId);
@@ -197,29 +226,8 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
       await finish(c, job, "failed", failureProblem(job.id, ended.error));
       return "failed";
     }
-    // all artifacts at once (each put is atomic and synced on its own), the network GeoJSON read meanwhile
-    const stored = Promise.all(ended.output.artifacts.map(async (a): Promise<StoredArtifact> => {
-      const key = artifactKey(job.id, a.name);
-      const put = await streamToStore(createReadStream(a.path), c.store, key, { maxBytes: Number.MAX_SAFE_INTEGER, contentType: a.mediaType });
-      return { name: a.name, mediaType: a.mediaType, size: put.size, sha256: put.sha256, key };
-    }));
-    stored.catch(() => undefined); // awaited below; a failed read must not leave it unobserved
-    // the stream links also go to PostGIS for the feature service (/api/v1/ogc), with the result, atomically
-    const lines = ended.output.artifacts.find((a) => a.name === "streams.geojson" || a.name === "network.geojson");
-    const linesGeoJson: unknown = lines ? JSON.parse(await readFile(lines.path, "utf8")) : null;
-    const artifacts = await stored;
-    const tCommit = performance.now();
-    const done = await c.db.transaction(async (tx) => {
-      const now = new Date();
-      const [row] = await tx.update(jobs).set({ status: "succeeded", stage: "done", progress: 1, finishedAt: now, updatedAt: now, heartbeatAt: now })
-        .where(and(eq(jobs.id, job.id), eq(jobs.workerId, c.workerId), eq(jobs.status, "running"), isNull(jobs.cancelRequestedAt)))
-        .returning();
-      if (!row) return false;
-      const result = { summary: ended.output.summary, timingsS: ended.output.timingsS, artifacts, softwareVersion: SOFTWARE.version };
-      await tx.insert(jobResults).values({ jobId: job.id, ...result }).onConflictDoUpdate({ target: jobResults.jobId, set: result });
-      if (linesGeoJson !== null) await storeNetworkFeatures(tx, job.id, linesGeoJson);
-      return true;
-    });
+    const stopBeating = keepBeating(c, job);
+    const { done, artifacts, tCommit } = await storeAndCommit(c, job, ended.output).finally(stopBeating);
     if (!done) {
       // cancelled (or taken over) while the artifacts were written: leave nothing of this attempt
       const [now] = await c.db.select().from(jobs).where(eq(jobs.id, job.id));
@@ -244,6 +252,25 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
     await rm(outDir, { recursive: true, force: true });
     prestartThread();
   }
+}
+
+/**
+ * Heartbeats while the main thread stores the artifacts and commits the result (the analysis thread's beat has
+ * stopped): large outputs or a slow S3 could otherwise outlast RILLSCALE_JOB_STALE_SECONDS, and the reaper would
+ * hand a live job back to the queue.
+ */
+export function keepBeating(c: RunContext, job: Pick<JobRow, "id">): () => Promise<void> {
+  let inFlight: Promise<unknown> = Promise.resolve();
+  const beat = setInterval(() => {
+    inFlight = c.db.update(jobs).set({ heartbeatAt: new Date() })
+      .where(and(eq(jobs.id, job.id), eq(jobs.workerId, c.workerId), eq(jobs.status, "running")))
+      .catch((e: Error) => console.error(`[worker] heartbeat of job ${job.id} while storing: ${e.message}`));
+  }, HEARTBEAT_MS);
+  // stopping waits for a beat already sent, so none lands after the row is finished
+  return () => {
+    clearInterval(beat);
+    return inFlight.then(() => undefined);
+  };
 }
 
 /** Running jobs whose worker stopped writing heartbeats (killed, machine lost): back to queued, to be re-sent. */
