@@ -73,16 +73,20 @@ export async function getJob(key: string, id: string): Promise<JobBody> {
   return (await (await api(`/api/v1/jobs/${id}`, { key })).json()) as JobBody;
 }
 
-/** Polls until `done(job)`; fails with the last state after timeoutMs. */
-export async function waitForJob(key: string, id: string, done: (j: JobBody) => boolean, timeoutMs = 120_000): Promise<JobBody> {
+/** Reads the job every 100 ms until `done(job)`; fails with the last state after timeoutMs. */
+export async function pollJob<J>(read: () => Promise<J>, id: string, done: (j: J) => boolean, timeoutMs = 120_000): Promise<J> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
-    const j = await getJob(key, id);
+    const j = await read();
     if (done(j)) return j;
     if (Date.now() > deadline) throw new Error(`job ${id} did not reach the expected state: ${JSON.stringify(j)}`);
     await new Promise((r) => setTimeout(r, 100));
   }
 }
+
+/** Polls the shared stack until `done(job)`. */
+export const waitForJob = (key: string, id: string, done: (j: JobBody) => boolean, timeoutMs = 120_000): Promise<JobBody> =>
+  pollJob(() => getJob(key, id), id, done, timeoutMs);
 
 export const finished = (j: JobBody) => ["succeeded", "failed", "cancelled"].includes(j.status);
 

@@ -2,7 +2,7 @@
 // database and object root: sign-in, keys, uploads and jobs, as client.ts and data-helpers.ts do for the shared one.
 import { DEMO_PASSWORD } from "@/db/seed";
 import { LocalDiskStore } from "@/lib/storage";
-import type { JobBody } from "@/tests/integration/data-helpers";
+import { pollJob, type JobBody } from "@/tests/integration/data-helpers";
 import type { ExtraStack } from "@/tests/setup/stack";
 
 export interface ExtraCall {
@@ -66,14 +66,7 @@ export function extraClient(app: ExtraStack) {
     },
 
     /** Polls every 100 ms until `done(job)`; fails with the last state after timeoutMs. */
-    async waitForJob(key: string, id: string, done: (j: JobTimes) => boolean, timeoutMs = 120_000): Promise<JobTimes> {
-      const deadline = Date.now() + timeoutMs;
-      for (;;) {
-        const j = await getJob(key, id);
-        if (done(j)) return j;
-        if (Date.now() > deadline) throw new Error(`job ${id} did not reach the expected state: ${JSON.stringify(j)}`);
-        await new Promise((r) => setTimeout(r, 100));
-      }
-    },
+    waitForJob: (key: string, id: string, done: (j: JobTimes) => boolean, timeoutMs = 120_000): Promise<JobTimes> =>
+      pollJob(() => getJob(key, id), id, done, timeoutMs),
   };
 }
