@@ -3,7 +3,7 @@
 import { mkdir } from "node:fs/promises";
 import path from "node:path";
 import { runDrainage, type DrainageParams } from "@/lib/pipelines/drainage";
-import { progressOnStderr, runCommand, UsageError, writeArtifacts, writeJson } from "./cli";
+import { progressOnStderr, runCommand, UsageError, writeArtifacts, writeJson } from "@/scripts/analyze/cli";
 
 const USAGE = "usage: npm run analyze -- drainage <dem.tif> [--threshold-km2 X | --auto-threshold] [--out dir] [--epsg code] [--largest N] [--exclude-highest-order]";
 

@@ -5,7 +5,7 @@ import { mkdir, readFile } from "node:fs/promises";
 import path from "node:path";
 import { runLine, type LineParams } from "@/lib/pipelines/line";
 import { parseGeoJsonText } from "@/lib/vector/read-geojson";
-import { dimensionDigest, runCommand, UsageError, writeJson } from "./cli";
+import { dimensionDigest, runCommand, UsageError, writeJson } from "@/scripts/analyze/cli";
 
 const USAGE = "usage: npm run analyze -- line <lines.geojson> [--out dir] [--min-ruler-m X --max-ruler-m Y] [--rulers N] " +
   "[--min-scale-m X --max-scale-m Y] [--epsg code]";

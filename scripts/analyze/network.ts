@@ -5,7 +5,7 @@ import path from "node:path";
 import { ZodError } from "zod";
 import { networkParamsSchema, runNetwork, type NetworkParams } from "@/lib/pipelines/network";
 import { VectorError } from "@/lib/vector/vector-error";
-import { runCommand, writeArtifacts, writeJson } from "./cli";
+import { runCommand, writeArtifacts, writeJson } from "@/scripts/analyze/cli";
 
 const USAGE = `usage: npm run analyze -- network <file.geojson|file.zip|file.shp> [options]
   --outlet=LON,LAT            outlet point, degrees WGS 84 (write it with "=" when the longitude is negative)

@@ -4,7 +4,7 @@
 import { mkdir } from "node:fs/promises";
 import path from "node:path";
 import { runSurface, type SurfaceParams } from "@/lib/pipelines/surface";
-import { dimensionDigest, progressOnStderr, runCommand, UsageError, writeJson } from "./cli";
+import { dimensionDigest, progressOnStderr, runCommand, UsageError, writeJson } from "@/scripts/analyze/cli";
 
 const USAGE = "usage: npm run analyze -- surface <dem.tif> [--out dir] [--normalisation true-units|grid-extent] " +
   "[--window cells] [--step cells] [--min-scale-m X --max-scale-m Y] [--epsg code] [--z-factor F] [--band B] [--quiet]";

@@ -391,7 +391,7 @@ describe("runDrainage() options", () => {
     const all = await runDrainage({ dem, outDir: tmp() }, params);
     const cut = await runDrainage({ dem, outDir: tmp() }, { ...params, excludeHighestOrder: true });
     const top = all.summary.horton.highestOrder;
-    expect(top).toBe(3); // this seeded surface has orders 1–3, so the cut fit is over orders 1 and 2 alone
+    expect(top).toBeGreaterThanOrEqual(3); // the cut fit needs at least two orders left after the top one is set aside (derived)
     expect(cut.summary.horton.table).toEqual(all.summary.horton.table); // the table keeps every order
     expect(all.summary.horton.ordersUsed).toHaveLength(top);
     expect(cut.summary.horton.ordersUsed).toHaveLength(top - 1);
@@ -404,7 +404,15 @@ describe("runDrainage() options", () => {
     expect(cut.summary.horton.bifurcationRatio!.value).not.toBe(all.summary.horton.bifurcationRatio!.value);
     // by hand over orders 1 and 2 alone: the line through two points has slope ln N₂ − ln N₁, so R_B = N₁/N₂ (derived)
     expectClose(rb(table.slice(0, 2)), table[0].streamCount / table[1].streamCount, 1e-12);
-    expectClose(cut.summary.horton.bifurcationRatio!.value, table[0].streamCount / table[1].streamCount, 1e-12);
+    // by hand over the orders below the top one, whatever their number: the closed-form least-squares slope
+    // Σ(x − x̄)(y − ȳ) / Σ(x − x̄)², which for two orders is the N₁/N₂ above (derived)
+    const kept = table.slice(0, top - 1);
+    const xs = kept.map((r) => r.order);
+    const ys = kept.map((r) => Math.log(r.streamCount));
+    const mx = xs.reduce((a, b) => a + b, 0) / xs.length;
+    const my = ys.reduce((a, b) => a + b, 0) / ys.length;
+    const slope = xs.reduce((a, x, i) => a + (x - mx) * (ys[i] - my), 0) / xs.reduce((a, x) => a + (x - mx) ** 2, 0);
+    expectClose(cut.summary.horton.bifurcationRatio!.value, Math.exp(-slope), 1e-12);
   });
 
   it("hackMinAreaKm2 fits only the sub-basins at least that large: fewer as the bound rises, one per link above it (derived)", async () => {
