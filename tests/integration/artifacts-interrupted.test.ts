@@ -62,38 +62,38 @@ describe("interrupted while the artifacts are stored (issue 6)", () => {
     const job = await c.submit(key, { dataset: dem, kind: "drainage", params: { channelThreshold: { method: "area", km2: 0.5 } } });
     const atCancel = await untilFirstArtifact(job.id);
     const res = await c.call(`/api/v1/jobs/${job.id}/cancel`, { method: "POST", key });
-    expect(res.status).toBe(202);
+    expect(res.status).toBe(202); // RFC 9110 §15.3.3: the cancel is accepted and carried out asynchronously
     const done = await c.waitForJob(key, job.id, finished, 60_000);
     console.log(`cancelled with ${atCancel.length} artifact object(s) already stored: ${atCancel.map((k) => k.split("/").at(-1)).join(", ")}`);
     // a partial set existed when the cancel came, so "gone" below is about objects that were really written
-    expect(atCancel.length).toBeGreaterThan(0);
-    expect(done.status).toBe("cancelled");
-    expect(await storedKeys(job.id)).toEqual([]);
-    expect(await rows("SELECT count(*) AS n FROM job_results WHERE job_id = $1", job.id)).toBe(0);
-    expect(await rows("SELECT count(*) AS n FROM network_features WHERE job_id = $1", job.id)).toBe(0);
-    expect((await c.call(`/api/v1/jobs/${job.id}/artifacts`, { key })).status).toBe(409);
+    expect(atCancel.length).toBeGreaterThan(0); // derived: the precondition of this test
+    expect(done.status).toBe("cancelled"); // derived
+    expect(await storedKeys(job.id)).toEqual([]); // derived: no objects left after cancel
+    expect(await rows("SELECT count(*) AS n FROM job_results WHERE job_id = $1", job.id)).toBe(0); // derived: no result row after cancel
+    expect(await rows("SELECT count(*) AS n FROM network_features WHERE job_id = $1", job.id)).toBe(0); // derived: no feature rows after cancel
+    expect((await c.call(`/api/v1/jobs/${job.id}/artifacts`, { key })).status).toBe(409); // derived; 409 Conflict with the job's state (RFC 9110 §15.5.10)
   });
 
   it("its worker SIGKILLed after its first artifact object exists: the retry succeeds with exactly one set of artifacts", async () => {
     const job = await c.submit(key, { dataset: dem, kind: "drainage", params: { channelThreshold: { method: "area", km2: 0.25 } } });
     const atKill = await untilFirstArtifact(job.id);
     process.kill(app.workerPid, "SIGKILL");
-    expect(atKill.length).toBeGreaterThan(0);
+    expect(atKill.length).toBeGreaterThan(0); // derived: the precondition of this test
     // a short stale time so the replacement takes the dead worker's job over within seconds
     replacement = spawnWorker({ ...app.env, RILLSCALE_JOB_STALE_SECONDS: "5" }, () => undefined);
     const done = await c.waitForJob(key, job.id, finished, 240_000);
-    expect(done.status, JSON.stringify(done.error)).toBe("succeeded");
-    expect(done.attempts).toBe(2);
-    expect(await rows("SELECT count(*) AS n FROM job_results WHERE job_id = $1", job.id)).toBe(1);
-    expect(await rows("SELECT count(*) AS n FROM audit_events WHERE action = 'job.succeeded' AND target = 'job:' || $1", job.id)).toBe(1);
+    expect(done.status, JSON.stringify(done.error)).toBe("succeeded"); // derived: a killed attempt is retried
+    expect(done.attempts).toBe(2); // derived: the killed attempt and its retry
+    expect(await rows("SELECT count(*) AS n FROM job_results WHERE job_id = $1", job.id)).toBe(1); // derived: exactly one result
+    expect(await rows("SELECT count(*) AS n FROM audit_events WHERE action = 'job.succeeded' AND target = 'job:' || $1", job.id)).toBe(1); // derived: success audited once
     const listed = (await (await c.call(`/api/v1/jobs/${job.id}/artifacts`, { key })).json()) as { items: { name: string; sha256: string }[] };
     const stored = await storedKeys(job.id);
     // one object per listed artifact, no leftovers of the killed attempt, and each object is the one listed
-    expect(stored.map((k) => k.split("/").at(-1)).sort()).toEqual(listed.items.map((a) => a.name).sort());
-    for (const k of atKill) expect(stored).toContain(k); // the killed attempt's objects were overwritten in place
+    expect(stored.map((k) => k.split("/").at(-1)).sort()).toEqual(listed.items.map((a) => a.name).sort()); // derived
+    for (const k of atKill) expect(stored).toContain(k); // the killed attempt's objects were overwritten in place (derived)
     for (const a of listed.items) {
       const res = await c.call(`/api/v1/jobs/${job.id}/artifacts/${a.name}`, { key });
-      expect(sha256(new Uint8Array(await res.arrayBuffer())), a.name).toBe(a.sha256);
+      expect(sha256(new Uint8Array(await res.arrayBuffer())), a.name).toBe(a.sha256); // derived: each object is the one listed
     }
   });
 });

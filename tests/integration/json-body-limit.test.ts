@@ -70,11 +70,11 @@ function postChunkedJson(path: string): Promise<Sent> {
 describe("JSON body limit (issue 6; RFC 9110 §15.5.14)", () => {
   it("a chunked 1 MiB JSON body to POST /api/v1/jobs gets a 413 payload-too-large problem before the body is sent in full", async () => {
     const r = await postChunkedJson("/api/v1/jobs");
-    expect(r.status, r.body).toBe(413);
-    expect(r.contentType).toBe("application/problem+json");
+    expect(r.status, r.body).toBe(413); // RFC 9110 §15.5.14 (413 Content Too Large)
+    expect(r.contentType).toBe("application/problem+json"); // RFC 9457 §3
     const problem = JSON.parse(r.body) as { type: string; status: number; request_id: string };
-    expect(problem).toMatchObject({ type: "https://rillscale.example/problems/payload-too-large", status: 413 });
-    expect(problem.request_id).toBeTruthy();
+    expect(problem).toMatchObject({ type: "https://rillscale.example/problems/payload-too-large", status: 413 }); // RFC 9457 §3: type URI, status equals the HTTP status
+    expect(problem.request_id).toBeTruthy(); // RFC 9457 §3 extension member (STANDARDS.md)
     // the answer came while the request was still being written: the server stopped reading near the cap (derived)
     expect(r.bytesSent).toBeLessThan(PAUSE_AT + CHUNK);
     console.log(`413 after ${(r.bytesSent / 1024).toFixed(0)} KiB of ${(r.total / 1024).toFixed(0)} KiB written`);

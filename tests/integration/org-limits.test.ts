@@ -63,14 +63,14 @@ describe("RILLSCALE_ORG_MAX_RUNNING_JOBS (issue 6: per-org limit on concurrent r
       if (jobs.every((j) => j.status !== "queued" && j.status !== "running") || Date.now() > deadline) break;
       await new Promise((r) => setTimeout(r, 100));
     }
-    for (const j of jobs) expect(j.status, `${j.kind}: ${JSON.stringify(j.error)}`).toBe("succeeded");
-    expect(mostRunning).toBeGreaterThan(0);
-    expect(mostRunning).toBeLessThanOrEqual(LIMIT);
-    expect(sawWaiting).toBe(true);
+    for (const j of jobs) expect(j.status, `${j.kind}: ${JSON.stringify(j.error)}`).toBe("succeeded"); // derived: the limit delays jobs, never fails them
+    expect(mostRunning).toBeGreaterThan(0); // derived
+    expect(mostRunning).toBeLessThanOrEqual(LIMIT); // derived: the per-org limit of our own design (issue 6)
+    expect(sawWaiting).toBe(true); // derived: six jobs over a limit below six must queue
     // the worker's own timestamps: started (first claim) to finished never overlap beyond the limit (derived)
     const overlap = maxOverlap(jobs.map((j) => ({ start: Date.parse(j.startedAt!), end: Date.parse(j.finishedAt!) })));
     console.log(`org running-jobs limit ${LIMIT}: most seen running ${mostRunning}, most overlapping by timestamps ${overlap}`);
-    expect(overlap).toBe(LIMIT);
+    expect(overlap).toBe(LIMIT); // derived: the limit is reached and never passed
   });
 });
 
@@ -94,8 +94,8 @@ describe("RILLSCALE_RATE_PER_ORG_PER_MINUTE (issue 6; draft-ietf-httpapi-ratelim
 
   it("two keys of one org share the org quota: 429 per-org with Retry-After once together they pass it, far below each key's own quota; another org is unaffected", async () => {
     const first = await c.call("/api/v1/jobs?limit=1", { key: keyA });
-    expect(first.status).toBe(200);
-    expect(first.headers.get("ratelimit-policy")).toBe(`"per-key";q=1000;w=60, "per-org";q=${ORG_QUOTA};w=60`);
+    expect(first.status).toBe(200); // derived: the first request is within every quota
+    expect(first.headers.get("ratelimit-policy")).toBe(`"per-key";q=1000;w=60, "per-org";q=${ORG_QUOTA};w=60`); // draft-ietf-httpapi-ratelimit-headers (RateLimit-Policy)
     // alternate the keys; fixed one-minute windows may end mid-test, so send at most two windows' worth
     const sent = { A: 1, B: 0 };
     let refused: Response | null = null;
@@ -104,20 +104,20 @@ describe("RILLSCALE_RATE_PER_ORG_PER_MINUTE (issue 6; draft-ietf-httpapi-ratelim
       sent[which]++;
       const res = await c.call("/api/v1/jobs?limit=1", { key: which === "A" ? keyA : keyB });
       if (res.status === 429) refused = res;
-      else expect(res.status).toBe(200);
+      else expect(res.status).toBe(200); // derived: below the org quota every request passes
     }
-    expect(refused, "no 429 within two windows' worth of requests").not.toBeNull();
+    expect(refused, "no 429 within two windows' worth of requests").not.toBeNull(); // RFC 6585 §4 (429); derived bound
     // neither key came near its own quota (1000): the org's count refused it
-    expect(Math.max(sent.A, sent.B)).toBeLessThanOrEqual(ORG_QUOTA + 2);
+    expect(Math.max(sent.A, sent.B)).toBeLessThanOrEqual(ORG_QUOTA + 2); // derived
     const retry = Number(refused!.headers.get("retry-after"));
-    expect(retry).toBeGreaterThan(0);
-    expect(retry).toBeLessThanOrEqual(60);
-    expect(refused!.headers.get("ratelimit")).toBe(`"per-org";r=0;t=${retry}`);
-    expect(refused!.headers.get("content-type")).toBe("application/problem+json");
-    expect(((await refused!.json()) as { type: string }).type).toBe("https://rillscale.example/problems/too-many-requests");
+    expect(retry).toBeGreaterThan(0); // RFC 6585 §4: a 429 may say in Retry-After how long to wait (delay-seconds, RFC 9110 §10.2.3)
+    expect(retry).toBeLessThanOrEqual(60); // derived: never past the end of a one-minute window
+    expect(refused!.headers.get("ratelimit")).toBe(`"per-org";r=0;t=${retry}`); // draft-ietf-httpapi-ratelimit-headers (RateLimit: r remaining, t reset)
+    expect(refused!.headers.get("content-type")).toBe("application/problem+json"); // RFC 9457 §3
+    expect(((await refused!.json()) as { type: string }).type).toBe("https://rillscale.example/problems/too-many-requests"); // RFC 9457 §3 type member
     // the other key of the same org is refused too (same window), a key of another org is not
     const [a, b] = await Promise.all([keyA, keyB].map((k) => c.call("/api/v1/jobs?limit=1", { key: k })));
-    expect([a.status, b.status]).toEqual([429, 429]);
-    expect((await c.call("/api/v1/jobs?limit=1", { key: otherOrgKey })).status).toBe(200);
+    expect([a.status, b.status]).toEqual([429, 429]); // RFC 6585 §4; derived: the org window is shared
+    expect((await c.call("/api/v1/jobs?limit=1", { key: otherOrgKey })).status).toBe(200); // derived: quotas are per org
   });
 });

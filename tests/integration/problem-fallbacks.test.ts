@@ -7,14 +7,14 @@ import { api } from "@/tests/integration/client";
 const PROBLEMS = "https://rillscale.example/problems/";
 
 async function expectProblem(res: Response, status: number, type: string) {
-  expect(res.status).toBe(status);
-  expect(res.headers.get("content-type")).toBe("application/problem+json");
+  expect(res.status).toBe(status); // RFC 9110 §15.5.5 (404) / §15.5.6 (405)
+  expect(res.headers.get("content-type")).toBe("application/problem+json"); // RFC 9457 §3
   const body = (await res.json()) as { type: string; status: number; title: string; request_id: string };
-  expect(body).toMatchObject({ type: PROBLEMS + type, status });
-  expect(body.title).toBeTruthy();
+  expect(body).toMatchObject({ type: PROBLEMS + type, status }); // RFC 9457 §3: type is a URI, status equals the HTTP status
+  expect(body.title).toBeTruthy(); // RFC 9457 §3 title member; fixed per type (STANDARDS.md)
   // the request id of the body is the one of the header (STANDARDS.md)
-  expect(body.request_id).toBeTruthy();
-  expect(res.headers.get("x-request-id")).toBe(body.request_id);
+  expect(body.request_id).toBeTruthy(); // RFC 9457 §3 extension member (STANDARDS.md)
+  expect(res.headers.get("x-request-id")).toBe(body.request_id); // derived: one id for header and body (STANDARDS.md)
   return body;
 }
 
@@ -30,7 +30,7 @@ describe("unknown API paths (RFC 9457; RFC 9110 §15.5.5)", () => {
   it("a path below a real one that has no route of its own is a 404 problem; the id given in x-request-id comes back", async () => {
     const id = `fallback-${randomUUID()}`;
     const body = await expectProblem(await api(`/api/v1/jobs/${randomUUID()}/no-such-part`, { method: "DELETE", headers: { "x-request-id": id } }), 404, "not-found");
-    expect(body.request_id).toBe(id);
+    expect(body.request_id).toBe(id); // derived: a caller's x-request-id is kept (STANDARDS.md)
   });
 });
 
@@ -43,13 +43,13 @@ describe("a method a real path does not have (RFC 9110 §15.5.6: 405 with Allow)
   ];
   it.each(cases)("%s %s is a 405 method-not-allowed problem with Allow: %s", async (method, path, allow) => {
     const res = await api(path, { method, ...(method === "GET" ? {} : { body: {} }) });
-    await expectProblem(res, 405, "method-not-allowed");
-    expect(res.headers.get("allow")).toBe(allow);
+    await expectProblem(res, 405, "method-not-allowed"); // RFC 9110 §15.5.6; RFC 9457 §3
+    expect(res.headers.get("allow")).toBe(allow); // RFC 9110 §15.5.6: a 405 carries Allow with the methods the path has
   });
 
   it("OPTIONS lists the methods the path has, not the 405 answers (RFC 9110 §9.3.7)", async () => {
     const res = await api("/api/v1/jobs", { method: "OPTIONS" });
-    expect(res.status).toBe(204);
-    expect(res.headers.get("allow")).toBe("GET, HEAD, OPTIONS, POST");
+    expect(res.status).toBe(204); // RFC 9110 §9.3.7 (a success without content; 204 rather than 200 is common practice)
+    expect(res.headers.get("allow")).toBe("GET, HEAD, OPTIONS, POST"); // RFC 9110 §9.3.7 with §10.2.1 Allow
   });
 });
