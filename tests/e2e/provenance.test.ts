@@ -52,23 +52,23 @@ describe("console: a finished job's signed provenance", () => {
     auditor = await signedInPage(AUDITOR);
     const request = admin.page.request;
     const upload = await request.post(`${baseUrl()}/api/v1/datasets?filename=elev.tif`, { headers: { "content-type": "image/tiff" }, data: readFileSync(DEM) });
-    expect([200, 201]).toContain(upload.status());
+    expect([200, 201]).toContain(upload.status()); // RFC 9110 §15.3.1/§15.3.2: stored anew or already there
     const dataset = ((await upload.json()) as { id: string }).id;
     const submitted = await request.post(`${baseUrl()}/api/v1/jobs`, {
       data: { dataset, kind: "drainage", params: { channelThreshold: { method: "area", km2: 6.5 } } },
     });
-    expect(submitted.status()).toBe(202);
+    expect(submitted.status()).toBe(202); // RFC 9110 §15.3.3: the job runs asynchronously
     jobId = ((await submitted.json()) as { id: string }).id;
     const status = await poll(async () => {
       const s = ((await (await request.get(`${baseUrl()}/api/v1/jobs/${jobId}`)).json()) as { status: string }).status;
       return s === "queued" || s === "running" ? undefined : s;
     });
-    expect(status).toBe("succeeded");
+    expect(status).toBe("succeeded"); // derived: the precondition of the suite
     // The worker signs within a poll or two of the job's end.
     await poll(async () => ((await request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance.jws`)).status() === 200 ? true : undefined));
     const artifacts = (await (await request.get(`${baseUrl()}/api/v1/jobs/${jobId}/artifacts`)).json()) as { items: { name: string }[] };
     artifactNames = artifacts.items.map((a) => a.name);
-    expect(artifactNames.length).toBeGreaterThan(0);
+    expect(artifactNames.length).toBeGreaterThan(0); // derived: there are artifacts to hash
   });
 
   afterAll(async () => {
@@ -83,17 +83,17 @@ describe("console: a finished job's signed provenance", () => {
     await section.waitFor();
 
     const [doc] = await Promise.all([page.waitForEvent("download"), section.getByRole("link", { name: "Download PROV-JSON" }).click()]);
-    expect(doc.suggestedFilename()).toBe(`provenance-${jobId}.json`);
+    expect(doc.suggestedFilename()).toBe(`provenance-${jobId}.json`); // derived: our download name
     const docBytes = readFileSync(await doc.path());
     const direct = await page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance`);
-    expect(Buffer.compare(docBytes, await direct.body())).toBe(0);
+    expect(Buffer.compare(docBytes, await direct.body())).toBe(0); // derived: the page serves the signed bytes unchanged (RFC 7797 signs them as they are)
     const prov = JSON.parse(docBytes.toString("utf8")) as { entity: object; activity: Record<string, unknown> };
-    expect(Object.keys(prov.activity)).toEqual([`rill:job-${jobId}`]);
+    expect(Object.keys(prov.activity)).toEqual([`rill:job-${jobId}`]); // W3C PROV-JSON: activities keyed by qualified name; one per job (STANDARDS.md)
 
     const [sig] = await Promise.all([page.waitForEvent("download"), section.getByRole("link", { name: "Download signature (JWS)" }).click()]);
     const jws = readFileSync(await sig.path(), "utf8").trim();
     // RFC 7797 detached compact form: header..signature.
-    expect(jws).toMatch(/^[A-Za-z0-9_-]+\.\.[A-Za-z0-9_-]+$/);
+    expect(jws).toMatch(/^[A-Za-z0-9_-]+\.\.[A-Za-z0-9_-]+$/); // RFC 7515 §7.1 compact serialization, payload detached (RFC 7797 §5)
     firstKid = kidOf(jws);
   });
 
@@ -103,19 +103,19 @@ describe("console: a finished job's signed provenance", () => {
     await section.getByRole("button", { name: "Verify" }).click();
     const outcome = section.getByTestId("provenance-verification");
     await outcome.waitFor();
-    expect(await outcome.getByRole("status").textContent()).toContain("Verified.");
-    expect(await outcome.getByTestId("signature-state").textContent()).toMatch(/^valid/);
-    expect(await outcome.getByTestId("signing-kid").textContent()).toBe(firstKid);
+    expect(await outcome.getByRole("status").textContent()).toContain("Verified."); // RFC 7515 §5.2 validation, in the page
+    expect(await outcome.getByTestId("signature-state").textContent()).toMatch(/^valid/); // RFC 7515 §5.2
+    expect(await outcome.getByTestId("signing-kid").textContent()).toBe(firstKid); // RFC 7515 §4.1.4 kid of the protected header
     const jwks = (await (await page.request.get(`${baseUrl()}/.well-known/jwks.json`)).json()) as { keys: { kid: string }[] };
-    expect(jwks.keys.map((k) => k.kid)).toContain(firstKid);
+    expect(jwks.keys.map((k) => k.kid)).toContain(firstKid); // RFC 7517 §5 JWK Set; the kid finds the key (RFC 7515 §4.1.4)
 
     const rows = outcome.getByRole("table", { name: "Hashes checked" }).locator("tbody tr");
     // The input dataset and every artifact: each hash matches an entity of the signed document.
-    expect(await rows.count()).toBe(artifactNames.length + 1);
+    expect(await rows.count()).toBe(artifactNames.length + 1); // derived: one row per artifact plus the input (STANDARDS.md entities)
     for (const name of [...artifactNames, "elev.tif"]) {
-      expect(await rows.filter({ hasText: name }).locator('[data-cell="match"]').textContent()).toMatch(/^matches rill:/);
+      expect(await rows.filter({ hasText: name }).locator('[data-cell="match"]').textContent()).toMatch(/^matches rill:/); // W3C PROV-JSON entity with its sha256 (STANDARDS.md); derived
     }
-    expect(await outcome.getByRole("note", { name: "Caution" }).textContent()).toContain("Screening analysis");
+    expect(await outcome.getByRole("note", { name: "Caution" }).textContent()).toContain("Screening analysis"); // derived: our caution note
     await page.screenshot({ path: path.join(SCREENSHOTS, "job-provenance-verified.png"), fullPage: true });
   });
 
@@ -124,8 +124,8 @@ describe("console: a finished job's signed provenance", () => {
     try {
       await analyst.page.goto(`${baseUrl()}/jobs/${jobId}`);
       await analyst.page.getByRole("table", { name: "Artifacts" }).waitFor();
-      expect(await analyst.page.getByRole("region", { name: "Provenance" }).count()).toBe(0);
-      expect((await analyst.page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance`)).status()).toBe(403);
+      expect(await analyst.page.getByRole("region", { name: "Provenance" }).count()).toBe(0); // derived: provenance:read is needed (our role design)
+      expect((await analyst.page.request.get(`${baseUrl()}/api/v1/jobs/${jobId}/provenance`)).status()).toBe(403); // RFC 9110 §15.5.4 (403 Forbidden)
     } finally {
       await analyst.context.close();
     }
@@ -136,12 +136,12 @@ describe("console: a finished job's signed provenance", () => {
     await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Signing keys" }).click();
     const table = page.getByRole("table", { name: "Signing keys" });
     const oldRow = table.getByRole("row", { name: new RegExp(firstKid) });
-    await expect.poll(async () => (await oldRow.textContent()) ?? "").toContain("Active");
+    await expect.poll(async () => (await oldRow.textContent()) ?? "").toContain("Active"); // derived
     await page.getByRole("button", { name: "Rotate now" }).click();
     await page.getByRole("dialog", { name: "Rotate the signing key now?" }).getByRole("button", { name: "Rotate signing key" }).click();
     await page.getByText("now signs new documents").waitFor();
-    await expect.poll(async () => (await oldRow.textContent()) ?? "").toContain("Retired");
-    expect(await table.locator("tbody tr").filter({ hasText: "Active" }).count()).toBe(1);
+    await expect.poll(async () => (await oldRow.textContent()) ?? "").toContain("Retired"); // derived: a rotated key is kept, retired
+    expect(await table.locator("tbody tr").filter({ hasText: "Active" }).count()).toBe(1); // derived: one signing key at a time
     await page.screenshot({ path: path.join(SCREENSHOTS, "signing-keys-rotated.png"), fullPage: true });
 
     const a = auditor.page;
@@ -150,13 +150,13 @@ describe("console: a finished job's signed provenance", () => {
     await section.getByRole("button", { name: "Verify" }).click();
     const outcome = section.getByTestId("provenance-verification");
     await outcome.waitFor();
-    expect(await outcome.getByRole("status").textContent()).toContain("Verified.");
-    expect(await outcome.getByTestId("signing-kid").textContent()).toBe(firstKid);
+    expect(await outcome.getByRole("status").textContent()).toContain("Verified."); // derived: a retired key still verifies what it signed (RFC 7515 §5.2)
+    expect(await outcome.getByTestId("signing-kid").textContent()).toBe(firstKid); // RFC 7515 §4.1.4
   });
 
   test("an auditor is not shown the admin-only Signing keys page", async () => {
     const { page } = auditor;
-    expect(await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Signing keys" }).count()).toBe(0);
+    expect(await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Signing keys" }).count()).toBe(0); // derived: admins only (our role design)
     await page.goto(`${baseUrl()}/signing-keys`);
     await page.getByText("Signing keys are for org admins only").waitFor();
   });
