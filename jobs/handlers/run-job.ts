@@ -174,17 +174,38 @@ async function finish(c: RunContext, job: JobRow, to: "failed" | "cancelled", er
 
 /** Stores every artifact (each put atomic and synced on its own) and commits the result with the stream links in
  *  PostGIS, atomically; `done` is false when the job stopped being ours and running meanwhile (cancelled, taken over). */
-async function storeAndCommit(c: RunContext, job: JobRow, output: HandlerOutput) {
-  // all artifacts at once, the network GeoJSON read meanwhile
-  const stored = Promise.all(output.artifacts.map(async (a): Promise<StoredArtifact> => {
+/**
+ * All artifacts at once. Every put settles before this returns, so none lands after the job was handed back and its
+ * outDir removed; if one failed, none of this job's artifacts stay and the first error is thrown.
+ */
+async function storeArtifacts(c: RunContext, job: JobRow, output: HandlerOutput): Promise<StoredArtifact[]> {
+  const settled = await Promise.allSettled(output.artifacts.map(async (a): Promise<StoredArtifact> => {
     const key = artifactKey(job.id, a.name);
     const put = await streamToStore(createReadStream(a.path), c.store, key, { maxBytes: Number.MAX_SAFE_INTEGER, contentType: a.mediaType });
     return { name: a.name, mediaType: a.mediaType, size: put.size, sha256: put.sha256, key };
   }));
+  const failed = settled.find((r): r is PromiseRejectedResult => r.status === "rejected");
+  if (failed) {
+    await removeArtifacts(c.store, job.id);
+    throw failed.reason;
+  }
+  return settled.map((r) => (r as PromiseFulfilledResult<StoredArtifact>).value);
+}
+
+async function storeAndCommit(c: RunContext, job: JobRow, output: HandlerOutput) {
+  // the network GeoJSON is read while the artifacts are stored
+  const stored = storeArtifacts(c, job, output);
   stored.catch(() => undefined); // awaited below; a failed read must not leave it unobserved
   // the stream links also go to PostGIS for the feature service (/api/v1/ogc), with the result
   const lines = output.artifacts.find((a) => a.name === "streams.geojson" || a.name === "network.geojson");
-  const linesGeoJson: unknown = lines ? JSON.parse(await readFile(lines.path, "utf8")) : null;
+  let linesGeoJson: unknown;
+  try {
+    linesGeoJson = lines ? JSON.parse(await readFile(lines.path, "utf8")) : null;
+  } catch (e) {
+    // the puts still run: let them end, then leave nothing of this attempt
+    if (await stored.then(() => true, () => false)) await removeArtifacts(c.store, job.id);
+    throw e;
+  }
   const artifacts = await stored;
   const tCommit = performance.now();
   const done = await c.db.transaction(async (tx) => {
