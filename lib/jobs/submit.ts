@@ -80,7 +80,10 @@ export async function submitJob(db: Db, boss: PgBoss, clock: Clock, acting: Acti
       await db.delete(jobs).where(eq(jobs.id, job.id));
       throw e;
     }
-    await db.execute(sql`SELECT pg_notify(${JOB_QUEUED_CHANNEL}, ${r.kind})`);
+    // Only a wake-up (the worker polls anyway): the job is queued, so a failed notify must not answer 500.
+    await db.execute(sql`SELECT pg_notify(${JOB_QUEUED_CHANNEL}, ${r.kind})`).catch((e: unknown) => {
+      console.error(`[jobs] job ${job.id} queued, but its wake-up notify failed:`, e);
+    });
   }
   await appendAudit(db, {
     orgId: acting.orgId, action: "job.create", actor: acting.actor, target: `job:${job.id}`, ip: acting.ip,
