@@ -28,7 +28,7 @@ await boss.work(MAINTENANCE_QUEUE, async ([job]) => {
   const purged = await purgeExpired(db(), systemClock);
   log(`maintenance ${job.id}: purged ${JSON.stringify(purged)}`);
 });
-await workAnalysisQueues(boss, log);
+const analysis = await workAnalysisQueues(boss, log);
 // Signed provenance of succeeded jobs, webhook deliveries of finished ones, the signing-key schedule.
 const stopFollowUp = startFollowUp(log);
 log(`started; queues: ${QUEUES.map((q) => q.name).join(", ")}`);
@@ -39,6 +39,7 @@ async function shutdown(signal: string) {
   stopping = true;
   log(`${signal}: stopping`);
   stopFollowUp();
+  await analysis.stop();
   await boss.stop({ graceful: true, wait: true, timeout: STOP_TIMEOUT_MS });
   await pool().end();
   log("stopped");

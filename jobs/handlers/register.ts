@@ -17,8 +17,10 @@ import { JOB_KINDS, JOB_QUEUED_CHANNEL, isJobKind, queueOf, type JobKind } from 
 const DEFER_SECONDS = 2;
 /** Idle queues are polled this often (pg-boss's default is 2 s): queue overhead stays well under a second. */
 const POLL_SECONDS = 0.5;
-/** A lost LISTEN connection is opened again after this long (the polls go on meanwhile). */
+/** A lost LISTEN connection is opened again after this long, doubled per failed try up to the cap (the polls go on
+ *  meanwhile, so a down database is not hammered and nothing waits on it). */
 const RELISTEN_MS = 1_000;
+const RELISTEN_MAX_MS = 30_000;
 /** Expired idempotency records and ended rate-limit windows are deleted this often. */
 const PURGE_MS = 3_600_000;
 
@@ -26,7 +28,8 @@ export interface AnalysisJobData {
   jobId: string;
 }
 
-export async function workAnalysisQueues(boss: PgBoss, log: (msg: string) => void): Promise<void> {
+/** Starts the work loops; the returned stop() closes the LISTEN connection (the shutdown stops pg-boss itself). */
+export async function workAnalysisQueues(boss: PgBoss, log: (msg: string) => void): Promise<{ stop(): Promise<void> }> {
   const e = dataEnv();
   const ctx: RunContext = {
     db: db(), store: objectStore(), workerId: `${hostname()}:${process.pid}:${randomUUID().slice(0, 8)}`,
@@ -41,7 +44,7 @@ export async function workAnalysisQueues(boss: PgBoss, log: (msg: string) => voi
       log(`${kind} job ${job.data.jobId}: ${outcome}`);
     }));
   }
-  await listenForSubmissions((kind) => {
+  const listening = await listenForSubmissions((kind) => {
     const id = workers.get(kind);
     if (id) boss.notifyWorker(id);
   });
@@ -70,17 +73,27 @@ export async function workAnalysisQueues(boss: PgBoss, log: (msg: string) => voi
   // the worker's shutdown ends the process, and these timers with it
   setInterval(() => void reap(), Math.max(1000, (ctx.staleSeconds * 1000) / 2));
   setInterval(() => void purge(), PURGE_MS);
+  return { stop: listening.stop };
 }
 
 /** LISTEN on a connection of its own (outside the pool, so the pool's shutdown does not wait for it) for the
  *  submissions' NOTIFY (lib/jobs/submit.ts) and wake the kind's work loop; a lost connection is opened again. */
-async function listenForSubmissions(wake: (kind: JobKind) => void): Promise<void> {
+async function listenForSubmissions(wake: (kind: JobKind) => void): Promise<{ stop(): Promise<void> }> {
+  let stopped = false;
+  let current: pg.Client | null = null;
+  let retry: NodeJS.Timeout | null = null;
+  let delayMs = RELISTEN_MS;
   const again = (err: Error) => {
-    console.error(`[worker] submission notifications: ${err.message}; listening again shortly`);
-    setTimeout(() => void listen(), RELISTEN_MS).unref();
+    if (stopped) return;
+    console.error(`[worker] submission notifications: ${err.message}; listening again in ${delayMs / 1000} s`);
+    retry = setTimeout(() => void listen(), delayMs);
+    retry.unref();
+    delayMs = Math.min(2 * delayMs, RELISTEN_MAX_MS);
   };
   const listen = async () => {
+    if (stopped) return;
     const client = new pg.Client({ connectionString: env().DATABASE_URL, application_name: "rillscale-worker-listen" });
+    current = client;
     let lost = false;
     const drop = (err: Error) => {
       if (lost) return;
@@ -96,9 +109,17 @@ async function listenForSubmissions(wake: (kind: JobKind) => void): Promise<void
     try {
       await client.connect();
       await client.query(`LISTEN ${JOB_QUEUED_CHANNEL}`);
+      delayMs = RELISTEN_MS;
     } catch (e) {
       drop(e as Error);
     }
   };
   await listen();
+  return {
+    async stop() {
+      stopped = true;
+      if (retry) clearTimeout(retry);
+      await current?.end().catch(() => undefined);
+    },
+  };
 }
