@@ -1,6 +1,6 @@
 // The stack integration and e2e tests run against: its own database on the project cluster (created per run,
 // dropped after), fresh secrets, the SMTP catcher, the built app in our web process on a free port, and the worker.
-import { createWriteStream, existsSync, mkdirSync, readFileSync, rmSync } from "node:fs";
+import { createWriteStream, existsSync, type WriteStream, mkdirSync, readFileSync, rmSync } from "node:fs";
 import path from "node:path";
 import type { ChildProcess } from "node:child_process";
 import {
@@ -35,6 +35,7 @@ interface Running {
   web: ChildProcess;
   worker: ChildProcess;
   catcher: MailCatcher;
+  log: WriteStream;
   users: number;
 }
 
@@ -48,9 +49,13 @@ interface Launched {
   web: ChildProcess;
   worker: ChildProcess;
   catcher: MailCatcher;
+  /** The server and worker output; closed by whoever stops them. */
+  log: WriteStream;
   mailDir: string;
   demoKeySecret: string;
 }
+
+const closeLog = (log: WriteStream) => new Promise<void>((resolve) => log.end(resolve));
 
 async function launch(
   cluster: ClusterInfo, database: string, runDir: string, logFile: string, overrides: Record<string, string>, beforeStart: () => void,
@@ -84,9 +89,13 @@ async function launch(
   } catch (e) {
     await Promise.all([stopChild(web), stopChild(worker)]);
     await catcher.close();
+    await closeLog(log);
+    // Nothing of a failed launch stays behind; its log (outside runDir) is kept for reading.
+    await dropDatabase(cluster, database);
+    rmSync(runDir, { recursive: true, force: true });
     throw new Error(`${(e as Error).message}\n--- ${logFile} ---\n${readFileSync(logFile, "utf8").slice(-3000)}`);
   }
-  return { url, env, web, worker, catcher, mailDir, demoKeySecret: seeded.apiKeySecret };
+  return { url, env, web, worker, catcher, log, mailDir, demoKeySecret: seeded.apiKeySecret };
 }
 
 async function bringUp(): Promise<Running> {
@@ -101,7 +110,7 @@ async function bringUp(): Promise<Running> {
   // Outside the run directory, so the last run's server and worker output survives teardown for reading.
   const logFile = path.join(projectRoot, ".data", "test-server.log");
   // The same build as `npm start` (a second distDir would make `next build` rewrite tsconfig.json for its types).
-  const { url, env, web, worker, catcher, mailDir, demoKeySecret } = await launch(cluster, database, runDir, logFile, {}, () => {
+  const { url, env, web, worker, catcher, log, mailDir, demoKeySecret } = await launch(cluster, database, runDir, logFile, {}, () => {
     if (buildIsStale()) buildApp();
   });
   const info: TestStackInfo = {
@@ -109,7 +118,7 @@ async function bringUp(): Promise<Running> {
     webPid: web.pid!, workerPid: worker.pid!, extraPidsFile: path.join(runDir, "extra-pids"),
     ownerUrl: connectionUrl(cluster, "owner", database), superUrl: connectionUrl(cluster, "super", database),
   };
-  return { info, cluster, web, worker, catcher, users: 0 };
+  return { info, cluster, web, worker, catcher, log, users: 0 };
 }
 
 /** A second server + worker beside the shared stack, for a suite that needs other settings (e.g. S3 storage). */
@@ -134,7 +143,7 @@ export async function startExtraStack(label: string, overrides: Record<string, s
   const database = `rillscale_test_${process.pid}_${label}`;
   const runDir = path.join(projectRoot, ".data", `test-run-${process.pid}-${label}`);
   const logFile = path.join(projectRoot, ".data", `test-server-${label}.log`);
-  const { url, env, web, worker, catcher, demoKeySecret } = await launch(cluster, database, runDir, logFile, overrides, () => {
+  const { url, env, web, worker, catcher, log, demoKeySecret } = await launch(cluster, database, runDir, logFile, overrides, () => {
     if (buildIsStale()) throw new Error("the app build is stale; the shared test stack builds it first");
   });
   return {
@@ -142,6 +151,7 @@ export async function startExtraStack(label: string, overrides: Record<string, s
     async stop() {
       await Promise.all([stopChild(web), stopChild(worker)]);
       await catcher.close();
+      await closeLog(log);
       await dropDatabase(cluster, database);
       rmSync(runDir, { recursive: true, force: true });
     },
@@ -176,6 +186,7 @@ export async function releaseTestStack(): Promise<void> {
   await Promise.all([stopChild(running.web), stopChild(running.worker)]);
   stopExtraPids(running.info.extraPidsFile);
   await running.catcher.close();
+  await closeLog(running.log);
   await dropDatabase(running.cluster, running.info.database);
   rmSync(path.dirname(running.info.mailDir), { recursive: true, force: true });
   if (running.cluster.startedNow) stopCluster();
