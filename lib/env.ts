@@ -17,7 +17,8 @@ const EnvSchema = z.object({
   MAIL_FROM: z.string().default("Rillscale <no-reply@rillscale.example>"),
   RILLSCALE_MAIL_DIR: z.string().optional(),
   RILLSCALE_DEV_MAIL: bool.default(false),
-  // How many reverse proxies append to X-Forwarded-For in front of `next start` (which appends the peer itself).
+  // How many trusted reverse proxies in front of scripts/web-server.ts append to X-Forwarded-For; the server appends
+  // the socket's peer itself, so 0 means the peer's address is the client's.
   RILLSCALE_TRUSTED_PROXIES: z.coerce.number().int().min(0).max(10).default(0),
 });
 

@@ -25,9 +25,27 @@ function restoreContentLength(res: http.ServerResponse) {
   } as typeof res.writeHead;
 }
 
+/**
+ * Next sets X-Forwarded-For only when the request has none, so a client could name its own address. The socket's peer
+ * is appended as the last hop; RILLSCALE_TRUSTED_PROXIES counts the proxies before it (lib/api/handler.ts clientIp).
+ */
+function appendPeer(req: http.IncomingMessage) {
+  const peer = req.socket.remoteAddress;
+  if (!peer) return;
+  const existing = req.headers["x-forwarded-for"];
+  const prior = Array.isArray(existing) ? existing.join(", ") : existing;
+  req.headers["x-forwarded-for"] = prior ? `${prior}, ${peer}` : peer;
+}
+
 const server = http.createServer((req, res) => {
   restoreContentLength(res);
-  void handle(req, res);
+  appendPeer(req);
+  handle(req, res).catch((e: unknown) => {
+    // An escaped rejection would otherwise be unhandled and end the web process.
+    console.error("rillscale web: request handler failed", e);
+    if (!res.headersSent) res.statusCode = 500;
+    res.end();
+  });
 });
 server.listen(port, hostname, () => console.log(`rillscale web: listening on http://${hostname}:${port}`));
 /** Stop taking requests, let running ones finish for a few seconds, then go. */

@@ -41,7 +41,10 @@ type RouteHandler = (req: Request, ctx: RouteContext) => Promise<Response>;
 const MAX_JSON_BYTES = 64 * 1024;
 const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
 
-/** The client address: `next start` appends the peer to X-Forwarded-For; trusted proxies add theirs before it. */
+/**
+ * scripts/web-server.ts appends the socket's peer to X-Forwarded-For, so the last hop is always the real peer; each of
+ * the RILLSCALE_TRUSTED_PROXIES proxies in front appended the hop before it. Hops further left are the client's word.
+ */
 function clientIp(req: Request): string | null {
   const hops = (req.headers.get("x-forwarded-for") ?? "").split(",").map((s) => s.trim()).filter(Boolean);
   return hops[hops.length - 1 - env().RILLSCALE_TRUSTED_PROXIES] ?? null;
