@@ -100,9 +100,10 @@ export interface SandboxRun<T> {
 
 export interface SandboxOptions {
   /** Directory holding package.json, tsconfig.json and node_modules/tsx; the child runs there. Defaults to the
-   *  working directory, which is the project root under `next start`, the worker and vitest alike. */
+   *  working directory, which is the project root under scripts/web-server.ts, the worker and vitest alike. */
   projectRoot?: string;
-  /** Shared cap on concurrent children; the deadline starts when the child is given its request, not while waiting. */
+  /** Shared cap on concurrent children; the deadline starts once a slot is held (not while waiting for one) and covers
+   *  a cold child's start-up too, so a child that hangs before it is ready is still killed. */
   slots?: SandboxSlots;
   /** Keep one more child of this entry started and idle, for the next run: Node's and tsx's start-up and the
    *  entry's module loading (most of a small inspection's time, seconds on a busy machine) happen before the
@@ -128,9 +129,9 @@ function checkLimits(l: SandboxLimits): void {
 
 /**
  * Spawns `process.execPath --max-old-space-size=N --import tsx <entry>` (tsx compiles the TypeScript child on
- * the fly, so this works the same from vitest, the tsx worker and a `next start` server whose bundle holds no
- * child file), sends it `request` over IPC once it reports ready, and returns its one reply. The child gets an
- * empty environment apart from the tsconfig path, so no server secret reaches code that parses uploads.
+ * the fly, so this works the same from vitest, the tsx worker and the web server, scripts/web-server.ts, whose
+ * bundle holds no child file), sends it `request` over IPC once it reports ready, and returns its one reply. The
+ * child gets an empty environment apart from the tsconfig path, so no server secret reaches code that parses uploads.
  */
 export function runInSandbox<T>(
   entry: string, request: unknown, limits: Partial<SandboxLimits> = {}, options: SandboxOptions = {},
@@ -202,6 +203,13 @@ function startChild(root: string, entryPath: string, maxOldSpaceMb: number): Sta
 
 /** Idle spares, one per entry and heap limit. An idle spare holds no slot: it has no input yet. */
 const spares = new Map<string, StartedChild>();
+let stopOnExit = false;
+
+/** Kills every idle spare (at shutdown, or after a test); a later keepSpare run starts a new one. */
+export function stopSpares(): void {
+  for (const spare of spares.values()) spare.child.kill("SIGKILL");
+  spares.clear();
+}
 const spareKey = (root: string, entryPath: string, maxOldSpaceMb: number) => `${root}\0${entryPath}\0${maxOldSpaceMb}`;
 
 function takeSpare(root: string, entryPath: string, maxOldSpaceMb: number): StartedChild {
@@ -226,6 +234,12 @@ function refChild(child: ChildProcess, held: boolean): void {
 function keepSpareOf(root: string, entryPath: string, maxOldSpaceMb: number): void {
   const key = spareKey(root, entryPath, maxOldSpaceMb);
   if (spares.get(key)?.exited === false) return;
+  // The web process's bundle holds its own copy of this module, so its shutdown cannot call stopSpares(); every
+  // process that keeps spares ends them on its way out instead.
+  if (!stopOnExit) {
+    stopOnExit = true;
+    process.once("exit", stopSpares);
+  }
   const spare = startChild(root, entryPath, maxOldSpaceMb);
   refChild(spare.child, false); // an idle spare must not keep the parent process alive
   void spare.closed.then(() => {
@@ -234,7 +248,7 @@ function keepSpareOf(root: string, entryPath: string, maxOldSpaceMb: number): vo
   spares.set(key, spare);
 }
 
-/** Gives a started child its request under the limits; the deadline and the watchdog start now. */
+/** Gives a started child its request (once it is ready) under the limits; the deadline and the watchdog start now. */
 function serve<T>(started: StartedChild, request: unknown, l: SandboxLimits): Promise<SandboxRun<T>> {
   const begun = performance.now();
   const { child } = started;

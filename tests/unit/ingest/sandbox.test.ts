@@ -1,7 +1,10 @@
-import { describe, expect, it } from "vitest";
+import { afterAll, describe, expect, it } from "vitest";
 import {
-  InspectionBusyError, InspectionFailedError, InspectionMemoryError, InspectionTimeoutError, runInSandbox, SandboxSlots,
+  InspectionBusyError, InspectionFailedError, InspectionMemoryError, InspectionTimeoutError, runInSandbox, SandboxSlots, stopSpares,
 } from "@/lib/ingest/sandbox";
+
+// The keepSpare test leaves an idle spare behind.
+afterAll(stopSpares);
 
 const CHILD = "tests/unit/ingest/fixtures/misbehaving-child.ts";
 
