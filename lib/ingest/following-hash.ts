@@ -6,7 +6,7 @@ import { Worker } from "node:worker_threads";
 /** Bytes read back per read(2) in the thread. */
 const READ_BYTES = 4 * 1024 * 1024;
 
-// Plain JavaScript evaluated as the thread (no bundler or TypeScript loader needed under next start, the tsx
+// Plain JavaScript evaluated as the thread (no bundler or TypeScript loader needed in the web server, the tsx
 // worker and vitest alike). Messages in: {upTo} (bytes 0..upTo are written), {end: size}; out: {digest} | {error}.
 const THREAD_SOURCE = `
 const { parentPort, workerData } = require("node:worker_threads");

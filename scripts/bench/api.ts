@@ -1,4 +1,4 @@
-// npm run bench -- api — brings up the test stack (tests/setup/stack.ts: its own database, next start + worker) and
+// npm run bench -- api — brings up the test stack (tests/setup/stack.ts: its own database, web server + worker) and
 // measures issue 6's three figures: a 1 GiB upload against `cp` + fsync of the same file on this disk, job-status GET
 // latency at a fixed rate with autocannon, and a drainage job end to end against the pipeline alone; prints one JSON
 // object with the figures, ratios and whether each target is met, then tears the stack down.

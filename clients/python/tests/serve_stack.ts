@@ -1,4 +1,4 @@
-// Brings up the same test stack as the integration suites (fresh database, `next start`, worker) for the
+// Brings up the same test stack as the integration suites (fresh database, scripts/web-server.ts, worker) for the
 // Python client's tests: prints one line `RILLSCALE_TEST_STACK {url, key}` and tears the stack down when stdin closes.
 import { acquireTestStack, releaseTestStack } from "@/tests/setup/stack";
 
