@@ -9,6 +9,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { z } from "zod";
 import { readDem, type Dem } from "@/lib/raster/read-geotiff";
+import { zFactorParam } from "@/lib/pipelines/dem-params";
 import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import { lonLatTransformer } from "@/lib/raster/reproject";
 import { makeGrid, type Grid } from "@/lib/raster/grid";
@@ -72,8 +73,7 @@ export const drainageParamsSchema = z.object({
   epsilonFill: z.boolean().default(false).describe("fill depressions with a minimal gradient instead of resolving flats without altering elevations; default false"),
   band: z.number().int().min(1).max(65535).optional().describe("1-based band of the GeoTIFF; required when it has several"),
   epsg: z.number().int().min(1024).max(32767).optional().describe("EPSG code of the DEM's CRS, when the file lacks one or states it wrongly"),
-  // a negative factor would turn the DEM upside down (ridges become channels); zod's number is finite
-  zFactor: z.number().gt(0).optional().describe("dimensionless factor applied to elevations after the vertical unit is converted to metres; finite, > 0; default 1"),
+  zFactor: zFactorParam,
   basins: basinSelection.default({ mode: "all" }).describe("which basins the statistics cover; default all"),
   excludeHighestOrder: z.boolean().default(false).describe("leave the highest Strahler order out of the Horton fits; default false"),
   hackMinAreaKm2: z.number().min(0).max(1e5).default(0).describe("fit Hack's law only over sub-basins at least this large, km²; default 0"),
