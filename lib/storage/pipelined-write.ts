@@ -9,11 +9,11 @@ const MIB = 1024 * 1024;
 export const WRITE_BATCH_BYTES = MIB;
 /** Batches in flight at once; memory held is at most their product (4 MiB) plus one chunk. Larger batches
  *  measured no faster here, and left more garbage between collections (RSS). */
-export const WRITES_IN_FLIGHT = 4;
+const WRITES_IN_FLIGHT = 4;
 /** A background fdatasync(2) after this many more bytes are written. Without it a large page cache (the kernel
  *  starts writing back only at dirty_background_ratio of memory, gigabytes here) keeps a whole upload dirty,
  *  and the fsync that makes it durable then writes all of it after the last byte arrived. */
-export const FLUSH_EVERY_BYTES = 64 * MIB;
+const FLUSH_EVERY_BYTES = 64 * MIB;
 
 /** writev(2) may write less than asked: continue with what is left. */
 async function writevFully(handle: FileHandle, buffers: Uint8Array[], position: number): Promise<void> {
