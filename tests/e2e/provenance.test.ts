@@ -93,7 +93,7 @@ describe("console: a finished job's signed provenance", () => {
     const [sig] = await Promise.all([page.waitForEvent("download"), section.getByRole("link", { name: "Download signature (JWS)" }).click()]);
     const jws = readFileSync(await sig.path(), "utf8").trim();
     // RFC 7797 detached compact form: header..signature.
-    expect(jws).toMatch(/^[A-Za-z0-9_-]+\.\.[A-Za-z0-9_-]+$/); // RFC 7515 §7.1 compact serialization, payload detached (RFC 7797 §5)
+    expect(jws).toMatch(/^[A-Za-z0-9_-]+\.\.[A-Za-z0-9_-]+$/); // RFC 7515 §7.1 compact serialization with the payload detached (RFC 7515 Appendix F)
     firstKid = kidOf(jws);
   });
 
