@@ -92,6 +92,15 @@ describe("runInSandbox()", () => {
     expect(failed).toMatchObject({ code: "corrupt" }); // a spare answers failures exactly as a fresh child does
   });
 
+  it("after stopSpares(), the next keepSpare run is served by a child spawned for it (derived)", async () => {
+    type Up = { uptimeMs: number };
+    await runInSandbox<Up>(CHILD, { act: "uptime" }, {}, { keepSpare: true });
+    await new Promise((r) => setTimeout(r, 1_500)); // the spare is up (as in the test above)
+    stopSpares();
+    const next = await runInSandbox<Up>(CHILD, { act: "uptime" }, {}, { keepSpare: true });
+    expect(next.result.uptimeMs).toBeLessThanOrEqual(next.elapsedMs);
+  });
+
   it("refuses non-positive limits before spawning anything (derived)", () => {
     expect(() => runInSandbox(CHILD, {}, { timeoutMs: 0 })).toThrow(RangeError);
     expect(() => runInSandbox("tests/unit/ingest/fixtures/no-such-child.ts", {})).toThrow(/does not exist/);
