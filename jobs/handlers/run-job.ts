@@ -217,6 +217,8 @@ async function storeAndCommit(c: RunContext, job: JobRow, output: HandlerOutput)
     const result = { summary: output.summary, timingsS: output.timingsS, artifacts, softwareVersion: SOFTWARE.version };
     await tx.insert(jobResults).values({ jobId: job.id, ...result }).onConflictDoUpdate({ target: jobResults.jobId, set: result });
     if (linesGeoJson !== null) await storeNetworkFeatures(tx, job.id, linesGeoJson);
+    // in the same transaction: whoever sees the job succeeded also finds its success audited, exactly once
+    await appendAudit(tx, { orgId: job.orgId, action: "job.succeeded", actor: WORKER_ACTOR, target: `job:${job.id}`, details: { kind: job.kind, artifacts: artifacts.length } }, systemClock);
     return true;
   });
   return { done, artifacts, tCommit };
@@ -259,7 +261,6 @@ export async function runJob(c: RunContext, jobId: string): Promise<RunOutcome> 
       }
       return "lost";
     }
-    await appendAudit(c.db, { orgId: job.orgId, action: "job.succeeded", actor: WORKER_ACTOR, target: `job:${job.id}`, details: { kind: job.kind, artifacts: artifacts.length } }, systemClock);
     // where a job's time went beyond its pipeline, for the queue-overhead figure of the api bench
     const s = (a: number, b: number) => ((b - a) / 1000).toFixed(3);
     console.log(`[worker] job ${job.id} (${job.kind}) seconds: claim+input ${s(t0, tThread)}, thread ${s(tThread, tStore)}, artifacts ${s(tStore, tCommit)}, commit ${s(tCommit, performance.now())}`);

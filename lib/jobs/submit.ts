@@ -110,6 +110,8 @@ export async function cancelJob(db: Db, clock: Clock, acting: Acting, id: string
     .where(and(eq(jobs.id, id), eq(jobs.status, "queued"))).returning();
   const row = queued ?? (await db.update(jobs).set({ cancelRequestedAt: now, updatedAt: now })
     .where(and(eq(jobs.id, id), eq(jobs.status, "running"))).returning())[0] ?? (await getJob(db, acting.orgId, id));
+  // it ended between the read above and the updates: a cancel can no longer change it
+  if (row.status === "succeeded" || row.status === "failed") throw new ApiError("conflict", `Job ${id} has already ${row.status}.`);
   await appendAudit(db, {
     orgId: acting.orgId, action: "job.cancel", actor: acting.actor, target: `job:${id}`, ip: acting.ip, details: { was: current.status },
   }, clock);
