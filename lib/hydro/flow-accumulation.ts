@@ -32,7 +32,13 @@ export function flowAccumulation(
   directions: Grid<Uint8Array>,
   dem: Grid<Float32Array>,
   geometry: CellGeometry,
-  options: { signal?: AbortSignal } = {},
+  options: {
+    signal?: AbortSignal;
+    /** donor counts of these very directions, from d8Directions' `donors` option: the counting pass is
+     *  skipped, and with it the checks of each direction (D8 makes none that leave the grid or enter
+     *  nodata); the cycle check stays. Consumed: it ends with every valid cell at 255. */
+    donors?: Uint8Array;
+  } = {},
 ): FlowAccumulation {
   const { width: w, height: h } = directions;
   const dir = directions.data;
@@ -43,47 +49,59 @@ export function flowAccumulation(
   if (geometry.area.length !== h) {
     throw new RangeError(`cell geometry has ${geometry.area.length} rows, the grid has ${h}`);
   }
+  if (options.donors !== undefined && options.donors.length !== w * h) {
+    throw new RangeError(`donor counts have ${options.donors.length} cells, the grid has ${w * h}`);
+  }
   const signal = options.signal;
   const n = w * h;
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
-  // Donor counts (at most 8, so one byte), checking each direction once; initial cell and area.
-  const donors = new Uint8Array(n);
+  // Each cell counts itself when it joins the order (its donors have all been added by then), so the
+  // cell counts start at 0 and need no pass of their own.
   const cells = new Uint32Array(n);
   const areaM2 = new Float64Array(n);
-  // On a projected grid every cell has one area: accumulate counts only and multiply once at the end
-  // (one rounding instead of one per addition, and half the memory traffic in the walk).
+  // On a projected grid every cell has one area: accumulate counts only and write each cell's area
+  // once, when its count is complete (one rounding instead of one per addition, half the memory
+  // traffic in the walk). Otherwise each valid cell starts with its own area, added to before it joins.
   const uniformArea = geometry.area.every((a) => a === geometry.area[0]);
+  const cellArea = h > 0 ? geometry.area[0] : 0;
   // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
   const noFlow = NO_FLOW, abortMask = ABORT_CHECK_CELLS - 1;
   let validCells = 0;
-  let outlets = 0;
+  let donors = options.donors;
+  if (donors === undefined) {
+    // Donor counts (at most 8, so one byte), checking each direction once.
+    donors = new Uint8Array(n);
+    for (let y = 0; y < h; y++) {
+      if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
+      const interiorRow = y > 0 && y < h - 1;
+      for (let x = 0, i = y * w; x < w; x++, i++) {
+        const zi = z[i];
+        if (zi !== zi) continue; // nodata: the NaN rule of isNodata, inline in this loop
+        const d = dir[i];
+        if (d === noFlow) continue;
+        if (d > 7) throw new RangeError(`cell (${x}, ${y}) has direction code ${d}; D8 codes are 0–7 or ${NO_FLOW}`);
+        if (!(interiorRow && x > 0 && x < w - 1)) {
+          const nx = x + D8_DX[d], ny = y + D8_DY[d];
+          if (nx < 0 || ny < 0 || nx >= w || ny >= h) {
+            throw new RangeError(`cell (${x}, ${y}) drains off the grid (direction ${d})`);
+          }
+        }
+        const t = i + offsets[d], zt = z[t];
+        if (zt !== zt) throw new RangeError(`cell (${x}, ${y}) drains into nodata (direction ${d})`);
+        donors[t]++;
+      }
+    }
+  }
   for (let y = 0; y < h; y++) {
     if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
-    const cellArea = geometry.area[y];
-    const interiorRow = y > 0 && y < h - 1;
-    for (let x = 0, i = y * w; x < w; x++, i++) {
+    const rowArea = geometry.area[y];
+    for (let i = y * w; i < y * w + w; i++) {
       const zi = z[i];
-      if (zi !== zi) continue; // nodata: the NaN rule of isNodata, inline in this loop
+      if (zi !== zi) continue;
       validCells++;
-      cells[i] = 1;
-      if (!uniformArea) areaM2[i] = cellArea;
-      const d = dir[i];
-      if (d === noFlow) {
-        outlets++;
-        continue;
-      }
-      if (d > 7) throw new RangeError(`cell (${x}, ${y}) has direction code ${d}; D8 codes are 0–7 or ${NO_FLOW}`);
-      if (!(interiorRow && x > 0 && x < w - 1)) {
-        const nx = x + D8_DX[d], ny = y + D8_DY[d];
-        if (nx < 0 || ny < 0 || nx >= w || ny >= h) {
-          throw new RangeError(`cell (${x}, ${y}) drains off the grid (direction ${d})`);
-        }
-      }
-      const t = i + offsets[d], zt = z[t];
-      if (zt !== zt) throw new RangeError(`cell (${x}, ${y}) drains into nodata (direction ${d})`);
-      donors[t]++;
+      if (!uniformArea) areaM2[i] = rowArea;
     }
   }
 
@@ -91,18 +109,25 @@ export function flowAccumulation(
   // for as long as the cell reached has no donor left to wait for. Each cell is appended to `order`
   // once, after all its donors, and the walks keep memory access local. A passed cell is marked DONE.
   const order = new Int32Array(validCells);
-  let tail = 0;
+  let tail = 0, outlets = 0;
   for (let s = 0; s < n; s++) {
     if ((s & abortMask) === 0) signal?.throwIfAborted();
-    if (donors[s] !== 0 || cells[s] === 0) continue; // waiting for donors, passed already, or nodata
+    if (donors[s] !== 0) continue; // waiting for donors, or passed already
+    const zs = z[s];
+    if (zs !== zs) continue; // nodata
     let c = s;
     for (;;) {
       order[tail++] = c;
       donors[c] = DONE;
+      const count = ++cells[c];
+      if (uniformArea) areaM2[c] = count * cellArea;
       const d = dir[c];
-      if (d === noFlow) break;
+      if (d === noFlow) {
+        outlets++;
+        break;
+      }
       const t = c + offsets[d];
-      cells[t] += cells[c];
+      cells[t] += count;
       if (!uniformArea) areaM2[t] += areaM2[c];
       if (--donors[t] !== 0) break;
       c = t;
@@ -110,10 +135,6 @@ export function flowAccumulation(
   }
   if (tail !== validCells) {
     throw new RangeError(`the directions form a cycle through ${validCells - tail} cells; D8 over a DEM cannot`);
-  }
-  if (uniformArea && h > 0) {
-    const cellArea = geometry.area[0];
-    for (let i = 0; i < n; i++) areaM2[i] = cells[i] * cellArea;
   }
   return { cells, areaM2, order, outlets, validCells };
 }

@@ -199,9 +199,12 @@ function conditionAndRoute(z: Grid<Float32Array>, cellGeometry: CellGeometry, pa
   stage("flats");
   const flats = params.epsilonFill ? null : resolveFlats(z, { signal, candidates });
   stage("directions");
-  const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, signal });
+  // D8 counts each cell's donors as it goes, sparing the accumulation its counting pass
+  const donors = new Uint8Array(z.data.length);
+  const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, donors, signal });
   return {
     directions,
+    donors,
     conditioning: {
       method: params.epsilonFill ? "priority-flood-epsilon" : "priority-flood-with-flat-resolution",
       cellsRaised: fill.cellsRaised, maxRaiseM: fill.maxRaise,
@@ -212,8 +215,8 @@ function conditionAndRoute(z: Grid<Float32Array>, cellGeometry: CellGeometry, pa
 
 /** Contributing areas and flow lengths; the cell counts and the topological order (8 bytes a cell)
  *  are dropped on return, as nothing after this needs them. */
-function accumulate(directions: Grid<Uint8Array>, z: Grid<Float32Array>, cellGeometry: CellGeometry, signal?: AbortSignal) {
-  const acc = flowAccumulation(directions, z, cellGeometry, { signal });
+function accumulate(directions: Grid<Uint8Array>, donors: Uint8Array, z: Grid<Float32Array>, cellGeometry: CellGeometry, signal?: AbortSignal) {
+  const acc = flowAccumulation(directions, z, cellGeometry, { signal, donors });
   const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
   return { areaM2: acc.areaM2, flowLengthM, validCells: acc.validCells, outletCells: acc.outlets };
 }
@@ -233,9 +236,9 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   // the pipeline conditions a copy when it was handed a DEM, so the caller's elevations stay as they were
   const z = makeGrid("dem" in input ? dem.elevation.data.slice() : dem.elevation.data, width, height);
 
-  const { directions, conditioning } = conditionAndRoute(z, cellGeometry, params, stage, signal);
+  const { directions, donors, conditioning } = conditionAndRoute(z, cellGeometry, params, stage, signal);
   stage("accumulation");
-  const acc = accumulate(directions, z, cellGeometry, signal);
+  const acc = accumulate(directions, donors, z, cellGeometry, signal);
   const flowLengthM = acc.flowLengthM;
 
   stage("channels");

@@ -101,8 +101,9 @@ function routeFlats(grid: Grid<Float32Array>, geometry: CellGeometry, candidates
   const { increments, ...flatSummary } = resolveFlats(grid, { candidates });
   const flatsS = seconds(t0);
   const t1 = process.hrtime.bigint();
-  const directions = d8Directions(grid, geometry, { flatIncrements: increments });
-  return { flatsS, directionsS: seconds(t1), directions, flatSummary };
+  const donors = new Uint8Array(grid.data.length);
+  const directions = d8Directions(grid, geometry, { flatIncrements: increments, donors });
+  return { flatsS, directionsS: seconds(t1), directions, donors, flatSummary };
 }
 
 /** Runs the native reference; under /usr/bin/time when present, for its CPU seconds (user + system),
@@ -172,9 +173,9 @@ export async function main(argv: string[]): Promise<number> {
     const flatCandidates = new Int32Array((cells + 31) >>> 5);
     const fill = priorityFlood(grid, { flatCandidates });
     const fillS = seconds(t1);
-    const { flatsS, directionsS, directions, flatSummary } = routeFlats(grid, geometry, flatCandidates);
+    const { flatsS, directionsS, directions, donors, flatSummary } = routeFlats(grid, geometry, flatCandidates);
     const t4 = process.hrtime.bigint();
-    const acc = flowAccumulation(directions, grid, geometry);
+    const acc = flowAccumulation(directions, grid, geometry, { donors });
     const accumulationS = seconds(t4);
     const channelCells = channelMask(acc.areaM2, thresholdM2).reduce((s, v) => s + v, 0);
     const t5 = process.hrtime.bigint();

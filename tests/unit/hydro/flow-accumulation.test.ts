@@ -96,6 +96,29 @@ describe("flowAccumulation()", () => {
     expect([empty.validCells, empty.outlets, empty.order.length]).toEqual([0, 0, 0]);
   });
 
+  it("with the donor counts d8Directions makes gives the same cells, areas, order and outlets (invariant)", () => {
+    for (const geometry of [projectedCellGeometry(37, 30, 30), rowVaryingGeometry(37)]) {
+      for (let seed = 61; seed <= 64; seed++) {
+        const dem = randomDem(45, 37, seed, 0.06);
+        priorityFlood(dem);
+        const flats = resolveFlats(dem);
+        const donors = new Uint8Array(dem.data.length);
+        const dir = d8Directions(dem, geometry, { flatIncrements: flats.increments, donors });
+        expect(d8Directions(dem, geometry, { flatIncrements: flats.increments }).data).toEqual(dir.data);
+        const counted = new Uint8Array(dem.data.length);
+        const offsets = [1, 46, 45, 44, -1, -46, -45, -44];
+        dir.data.forEach((d, i) => { if (d !== NO_FLOW) counted[i + offsets[d]]++; });
+        expect(donors).toEqual(counted);
+        const plain = flowAccumulation(dir, dem, geometry);
+        const fused = flowAccumulation(dir, dem, geometry, { donors });
+        expect(fused.cells).toEqual(plain.cells);
+        expect(fused.areaM2).toEqual(plain.areaM2);
+        expect(fused.order).toEqual(plain.order);
+        expect([fused.outlets, fused.validCells]).toEqual([plain.outlets, plain.validCells]);
+      }
+    }
+  });
+
   it("rejects directions that form a cycle, leave the grid or enter nodata", () => {
     const g = projectedCellGeometry(1, 1, 1);
     const dem = makeGrid(Float32Array.of(1, 1, NaN), 3, 1);
