@@ -26,6 +26,20 @@ export function db(): Db {
   return holder.__rillscaleDb.db;
 }
 
+/**
+ * A statement built once per handle and then run as a named prepared statement (PostgreSQL 15 manual, PREPARE):
+ * the hot look-ups of every API request (the API key, the job) skip Drizzle's query building and the server's
+ * parse and plan after the first run on each connection. Keyed by handle, so a transaction gets its own.
+ */
+export function preparedFor<Q>(db: Db, name: string, build: (db: Db) => Q): Q {
+  let byName = preparedByHandle.get(db);
+  if (!byName) preparedByHandle.set(db, (byName = new Map()));
+  let q = byName.get(name) as Q | undefined;
+  if (q === undefined) byName.set(name, (q = build(db)));
+  return q;
+}
+const preparedByHandle = new WeakMap<Db, Map<string, unknown>>();
+
 export function pool(): pg.Pool {
   db();
   return holder.__rillscaleDb!.pool;

@@ -4,7 +4,7 @@
 import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
 import { crc32 } from "node:zlib";
 import { and, desc, eq, isNull, lt, or, sql } from "drizzle-orm";
-import type { Db } from "@/db/client";
+import { preparedFor, type Db } from "@/db/client";
 import { apiKeys, organisations, type ApiKeyRow, type Organisation } from "@/db/schema";
 import type { Scope } from "@/lib/auth/permissions";
 import type { Clock } from "@/lib/auth/clock";
@@ -80,8 +80,9 @@ export type KeyCheck = { ok: true; key: ApiKeyRow; org: Organisation } | { ok: f
 export async function authenticateApiKey(db: Db, pepper: string, token: string, clock: Clock): Promise<KeyCheck> {
   const parsed = parseKey(token);
   if (!parsed) return { ok: false, reason: "malformed" };
-  const [found] = await db.select({ key: apiKeys, org: organisations }).from(apiKeys)
-    .innerJoin(organisations, eq(organisations.id, apiKeys.orgId)).where(eq(apiKeys.id, parsed.id));
+  const [found] = await preparedFor(db, "api_key_by_id", (d) => d.select({ key: apiKeys, org: organisations }).from(apiKeys)
+    .innerJoin(organisations, eq(organisations.id, apiKeys.orgId)).where(eq(apiKeys.id, sql.placeholder("id"))).prepare("api_key_by_id"))
+    .execute({ id: parsed.id });
   if (!found) return { ok: false, reason: "unknown" };
   const { key: row, org } = found;
   const now = clock.now();

@@ -3,7 +3,7 @@
 // result, recorded as reused), the queue send, cancel, and the keyset-paginated list.
 import { and, desc, eq, gte, inArray, lt, lte, or, sql, type SQL } from "drizzle-orm";
 import type PgBoss from "pg-boss";
-import type { Db } from "@/db/client";
+import { preparedFor, type Db } from "@/db/client";
 import { jobResults, jobs, type JobRow } from "@/db/schema";
 import { ApiError, type FieldError } from "@/lib/api/problem";
 import { appendAudit } from "@/lib/audit/log";
@@ -93,7 +93,9 @@ export async function submitJob(db: Db, boss: PgBoss, clock: Clock, acting: Acti
 }
 
 export async function getJob(db: Db, orgId: string, id: string): Promise<JobRow> {
-  const [row] = await db.select().from(jobs).where(and(eq(jobs.orgId, orgId), eq(jobs.id, id)));
+  const [row] = await preparedFor(db, "job_by_id", (d) => d.select().from(jobs)
+    .where(and(eq(jobs.orgId, sql.placeholder("orgId")), eq(jobs.id, sql.placeholder("id")))).prepare("job_by_id"))
+    .execute({ orgId, id });
   if (!row) throw new ApiError("not-found", `No job ${id}.`);
   return row;
 }
