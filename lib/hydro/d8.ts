@@ -86,13 +86,20 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
     signal?.throwIfAborted();
     steepestDescentRows(z, w, h, inv, dir, donors, y, Math.min(h, y + ABORT_CHECK_ROWS));
   }
-  if (inc !== undefined) {
-    for (let y = 0; y < h; y += ABORT_CHECK_ROWS) {
-      signal?.throwIfAborted();
-      flatDescentRows(z, w, h, inv, inc, dir, donors, y, Math.min(h, y + ABORT_CHECK_ROWS));
-    }
-  }
+  if (inc !== undefined) flatDescent(dem, inv, inc, dir, donors, signal);
   return { data: dir, width: w, height: h };
+}
+
+/** flatDescentRows over the whole grid, looking at the signal every ABORT_CHECK_ROWS rows: the second
+ *  half of d8Directions, once steepestDescentRows has set `dir` (and counted into `donors`). */
+export function flatDescent(
+  dem: Grid<Float32Array>, inv: Float64Array, inc: Int32Array, dir: Uint8Array, donors: Uint8Array | null, signal?: AbortSignal,
+): void {
+  const { data: z, width: w, height: h } = dem;
+  for (let y = 0; y < h; y += ABORT_CHECK_ROWS) {
+    signal?.throwIfAborted();
+    flatDescentRows(z, w, h, inv, inc, dir, donors, y, Math.min(h, y + ABORT_CHECK_ROWS));
+  }
 }
 
 // The two kernels below are self-contained (no imports, no inner functions, constants inline): the

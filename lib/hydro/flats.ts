@@ -23,7 +23,8 @@ export interface FlatResolution {
 // Per-cell state while resolving, in the increments array itself (no label grid): 0 off flats; a flat
 // cell holds the bitwise complement (so a negative number) of its steps from higher terrain (1, 2, …)
 // or NOT_REACHED, plus the WAY_OUT bit when it touches a draining cell of equal elevation; a finished
-// cell holds its increment, so a resolved grid needs no pass to turn states into increments.
+// cell holds its increment. The steps towards lower terrain are kept apart (one Int32 a cell), so the
+// two searches can run at once.
 /** a flat cell no breadth-first search from higher terrain has reached (yet) */
 const NOT_REACHED = 0x3fffffff;
 /** flag: the cell touches a draining cell of equal elevation, so it is one step from an outlet */
@@ -38,6 +39,23 @@ export interface FlatOptions {
   candidates?: Int32Array;
 }
 
+/** The flat cells found by `findFlats`, with the starting cells of the two breadth-first searches. */
+export interface FlatSearch {
+  width: number;
+  /** the cells `findFlats` tested (its candidates, or every interior cell) */
+  candidates: Int32Array;
+  /** per-cell state (see above): 0 off the flats, negative on them */
+  state: Int32Array;
+  /** room for every candidate; first the high edges (step 1 from higher terrain), in row order */
+  fromHigher: Int32Array;
+  highEdges: number;
+  /** room for every candidate; first the cells with a way out (step 1 towards lower terrain) */
+  towardsLower: Int32Array;
+  wayOuts: number;
+  flatCells: number;
+  flats: number;
+}
+
 /**
  * Finds the flats of `dem` (after depression filling without epsilon) and builds increments that route
  * each flat to its outlets: 2·(steps to the nearest draining cell of equal elevation) + (M − steps from
@@ -46,9 +64,32 @@ export interface FlatOptions {
  * rises by at most 1, so every cell of a resolved flat has a neighbour with a smaller increment
  * (Barnes et al. 2014, §2). Barnes et al. take M per flat; one M for all flats shifts each flat's
  * increments by a constant, which keeps every difference D8 compares inside a flat, and spares a
- * label grid and one pass over the flat cells.
+ * label grid.
+ *
+ * The stages are exported for lib/hydro/condition.ts, which runs the two searches (independent of
+ * each other, as each keeps its steps in its own array) on two threads: findFlats, stepsFromHigher
+ * and stepsTowardsLower in either order or at once, then finishFlats.
  */
 export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {}): FlatResolution {
+  const search = findFlats(dem, options);
+  const towards = new Int32Array(search.state.length);
+  const maxAway = stepsFromHigher(search.state, search.fromHigher, search.highEdges, search.width);
+  options.signal?.throwIfAborted();
+  const reached = stepsTowardsLower(search.state, towards, search.towardsLower, search.wayOuts, search.width);
+  return finishFlats(search, towards, maxAway, reached, options.signal);
+}
+
+/**
+ * Step 1: the flat cells among the candidates, row by row: interior, valid, every neighbour valid and
+ * not lower (NaN fails `>=`); one with a higher neighbour is a high edge, step 1 from higher terrain.
+ * Edge cells and cells next to nodata are never flat: with no lower neighbour they are outlets. A flat
+ * cell next to a cell of its elevation off the flats has a way out (that cell drains, or it would be
+ * flat), step 1 towards lower terrain: a neighbour outside the candidates is off the flats, one tested
+ * before is known, and one tested after marks it then. The flats are counted on the way by joining
+ * runs of flat cells that touch the runs of the row above. With `shared`, the arrays the searches
+ * work on are SharedArrayBuffers, for a helper thread.
+ */
+export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shared?: boolean } = {}): FlatSearch {
   const { data: z, width: w, height: h } = dem;
   if (z.length !== w * h) {
     throw new RangeError(`grid data has ${z.length} cells, expected ${w}×${h} = ${w * h}`);
@@ -61,21 +102,16 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
   const signal = options.signal;
   signal?.throwIfAborted();
   const candidates = options.candidates ?? interiorCells(w, h);
-  const state = new Int32Array(n);
+  const ints = (length: number) => (options.shared ? new Int32Array(new SharedArrayBuffer(4 * length)) : new Int32Array(length));
+  const state = ints(n);
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
-  // 1. Flat cells among the candidates, row by row: interior, valid, every neighbour valid and not
-  //    lower (NaN fails `>=`); one with a higher neighbour is a high edge, step 1. Edge cells and cells
-  //    next to nodata are never flat: with no lower neighbour they are outlets. A flat cell next to a
-  //    cell of its elevation off the flats has a way out (that cell drains, or it would be flat): a
-  //    neighbour outside the candidates is off the flats, one tested before is known, and one tested
-  //    after marks it then. The flats are counted on the way by joining runs of flat cells that touch
-  //    the runs of the row above.
   const runs = new FlatRuns(w);
-  // Room for every candidate, so the high edges go into the queue as they are found (in row order).
-  const queue = new Int32Array(countBits(candidates));
-  let tail = 0;
+  // Room for every candidate, so the starting cells go into the queues as they are found.
+  const room = countBits(candidates);
+  const fromHigher = ints(room), towardsLower = ints(room);
+  let highEdges = 0, wayOuts = 0;
   let flatCells = 0;
   for (let y = 1; y < h - 1; y++) {
     if (y % ABORT_CHECK_ROWS === 0) signal?.throwIfAborted();
@@ -105,92 +141,110 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
         }
         if (flat) {
           state[i] = ~((higher ? 1 : NOT_REACHED) | (wayOut ? WAY_OUT : 0));
-          if (higher) queue[tail++] = i;
+          if (higher) fromHigher[highEdges++] = i;
+          if (wayOut) towardsLower[wayOuts++] = i;
           flatCells++;
           runs.add(i - row);
         } else {
           // a candidate that is not flat: the flat cells of its elevation tested before it have a way out
           for (let k = 0; k < 8; k++) {
             const j = i + offsets[k];
-            if (j < i && state[j] !== 0 && z[j] === zc) state[j] &= ~WAY_OUT; // sets the bit of the complement
+            // (WAY_OUT set in the state is the bit clear in the cell's value, its complement)
+            if (j < i && state[j] !== 0 && z[j] === zc && (state[j] & WAY_OUT) !== 0) {
+              state[j] &= ~WAY_OUT;
+              towardsLower[wayOuts++] = j;
+            }
           }
         }
       }
     }
     runs.endRow();
   }
-  const result = { increments: state, flatCells, flats: runs.components(), unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
-  if (flatCells === 0) return result;
+  return { width: w, candidates, state, fromHigher, highEdges, towardsLower, wayOuts, flatCells, flats: runs.components() };
+}
 
-  // 2. Steps from higher terrain, breadth-first from the high edges; the WAY_OUT bit rides along.
-  //    Flat cells are interior, so their eight offsets never leave the grid. Cells with a way out are
-  //    gathered at the front of the queue, behind its head, as they are passed: they start step 3.
-  //    Breadth-first steps do not depend on the order of the starting cells.
+// The two searches below are self-contained (no imports, no inner functions, constants inline: 0x3fffffff
+// is NOT_REACHED and 1 << 30 WAY_OUT): the helper thread (lib/hydro/helper-thread.ts) runs their source
+// text as it is. Flat cells are interior, so their eight offsets never leave the grid. Breadth-first
+// steps do not depend on the order of the starting cells.
+
+/** Step 2: steps from higher terrain, breadth-first from the `highEdges` cells at the front of
+ *  `queue` (room for every flat cell), into the states (the WAY_OUT bit rides along). Returns the
+ *  largest number of steps. */
+export function stepsFromHigher(state: Int32Array, queue: Int32Array, highEdges: number, w: number): number {
+  const notReached = 0x3fffffff, wayOut = 1 << 30;
+  const offsets = [1, w + 1, w, w - 1, -1, -w - 1, -w, -w + 1];
   let maxAway = 0;
-  let wayOuts = 0;
-  for (let head = 0; head < tail; head++) {
-    const c = queue[head], v = ~state[c], away = v & ~WAY_OUT;
+  for (let head = 0, tail = highEdges; head < tail; head++) {
+    const c = queue[head], away = ~state[c] & ~wayOut;
     if (away > maxAway) maxAway = away;
     for (let k = 0; k < 8; k++) {
       const j = c + offsets[k];
       const vj = ~state[j]; // −1 off the flats, never NOT_REACHED
-      if ((vj & ~WAY_OUT) === NOT_REACHED) {
-        state[j] = ~((away + 1) | (vj & WAY_OUT));
+      if ((vj & ~wayOut) === notReached) {
+        state[j] = ~((away + 1) | (vj & wayOut));
         queue[tail++] = j;
       }
     }
-    if ((v & WAY_OUT) !== 0) queue[wayOuts++] = c;
   }
-  signal?.throwIfAborted();
-  // Flats without higher terrain were not searched: gather their ways out here.
-  if (tail < flatCells) {
-    for (let wi = 0; wi < words; wi++) {
-      let word = candidates[wi];
-      while (word !== 0) {
-        const low = word & -word;
-        word ^= low;
-        const i = (wi << 5) + 31 - Math.clz32(low);
-        if (~state[i] === (NOT_REACHED | WAY_OUT)) queue[wayOuts++] = i;
-      }
-    }
-  }
+  return maxAway;
+}
 
-  // 3. Steps towards lower terrain, level by level from the cells with a way out (step 1); storing the
-  //    (positive) increment also marks the cell visited.
-  const awayTerm = (v: number) => {
-    const away = v & ~WAY_OUT;
-    return away === NOT_REACHED ? 0 : maxAway - away;
-  };
-  let maxIncrement = 0;
-  for (let q = 0; q < wayOuts; q++) {
-    const i = queue[q];
-    const inc = 2 + awayTerm(~state[i]);
-    if (inc > maxIncrement) maxIncrement = inc;
-    state[i] = inc;
-  }
-  tail = wayOuts;
+/** Step 3: steps towards lower terrain, breadth-first from the `wayOuts` cells at the front of `queue`
+ *  (room for every flat cell), into `towards` (zeroed; the cells with a way out are step 1), over the
+ *  cells whose state is negative (the flats; the states themselves are only read, so step 2 may run at
+ *  the same time). Returns the number of cells reached. */
+export function stepsTowardsLower(state: Int32Array, towards: Int32Array, queue: Int32Array, wayOuts: number, w: number): number {
+  const offsets = [1, w + 1, w, w - 1, -1, -w - 1, -w, -w + 1];
+  for (let q = 0; q < wayOuts; q++) towards[queue[q]] = 1;
+  let tail = wayOuts;
   for (let head = 0, step = 2; head < tail; step++) {
     const levelEnd = tail;
     for (; head < levelEnd; head++) {
       const c = queue[head];
       for (let k = 0; k < 8; k++) {
         const j = c + offsets[k];
-        const sj = state[j];
-        if (sj < 0) {
-          const inc = 2 * step + awayTerm(~sj);
-          if (inc > maxIncrement) maxIncrement = inc;
-          state[j] = inc;
+        if (state[j] < 0 && towards[j] === 0) {
+          towards[j] = step;
           queue[tail++] = j;
         }
       }
     }
   }
-  signal?.throwIfAborted();
+  return tail;
+}
 
-  // 4. When every flat cell was reached, the states are the increments. Otherwise the cells still
-  //    negative belong to flats without a way out: they get 0 and their flats are counted by a search
-  //    over them alone.
-  if (tail === flatCells) return { ...result, maxIncrement };
+/**
+ * Step 4: the increments 2·towards + (M − away) into the states, row by row, once both searches are
+ * done (`reached` is what stepsTowardsLower returned). The cells still negative then belong to flats
+ * without a way out: they get 0 and their flats are counted by a search over them alone.
+ */
+export function finishFlats(search: FlatSearch, towards: Int32Array, maxAway: number, reached: number, signal?: AbortSignal): FlatResolution {
+  const { candidates, state, flatCells, flats, width: w } = search;
+  signal?.throwIfAborted();
+  const result = { increments: state, flatCells, flats, unresolvedFlats: 0, unresolvedCells: 0, maxIncrement: 0 };
+  if (flatCells === 0) return result;
+  const words = candidates.length;
+  let maxIncrement = 0;
+  for (let wi = 0; wi < words; wi++) {
+    let word = candidates[wi];
+    while (word !== 0) {
+      const low = word & -word;
+      word ^= low;
+      const i = (wi << 5) + 31 - Math.clz32(low);
+      const t = towards[i];
+      if (t === 0) continue; // off the flats, or on one without a way out
+      const away = ~state[i] & ~WAY_OUT;
+      const inc = 2 * t + (away === NOT_REACHED ? 0 : maxAway - away);
+      if (inc > maxIncrement) maxIncrement = inc;
+      state[i] = inc;
+    }
+  }
+  signal?.throwIfAborted();
+  if (reached === flatCells) return { ...result, maxIncrement };
+  const offsets = new Int32Array(8);
+  for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
+  const queue = search.fromHigher; // step 2 is done with it
   let unresolvedCells = 0;
   let unresolvedFlats = 0;
   for (let wi = 0; wi < words; wi++) {

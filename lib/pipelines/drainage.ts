@@ -14,9 +14,7 @@ import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import { lonLatTransformer } from "@/lib/raster/reproject";
 import { makeGrid, type Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
-import { priorityFlood } from "@/lib/hydro/priority-flood";
-import { resolveFlats } from "@/lib/hydro/flats";
-import { d8Directions } from "@/lib/hydro/d8";
+import { conditionAndRoute as conditionDem } from "@/lib/hydro/condition";
 import { flowAccumulation } from "@/lib/hydro/flow-accumulation";
 import { constantDropThreshold, logSpacedThresholds, type ConstantDropResult } from "@/lib/hydro/constant-drop";
 import { networkFromRaster, paintLinks, type RasterNetwork } from "@/lib/network/from-raster";
@@ -189,22 +187,14 @@ function streamsGeoJson(network: StreamNetwork, order: Int32Array, magnitude: Fl
   return new TextEncoder().encode(JSON.stringify({ type: "FeatureCollection", features }));
 }
 
-/** Depression filling, flats and D8. The flat increments (4 bytes a cell) stay inside, so they can be
- *  collected before accumulation allocates its arrays. */
-function conditionAndRoute(z: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, signal?: AbortSignal) {
-  stage("fill");
-  // the flood marks the cells that may be flat (a bit a cell), so flat resolution tests those only
-  const candidates = params.epsilonFill ? undefined : new Int32Array((z.data.length + 31) >>> 5);
-  const fill = priorityFlood(z, { epsilon: params.epsilonFill, signal, flatCandidates: candidates });
-  stage("flats");
-  const flats = params.epsilonFill ? null : resolveFlats(z, { signal, candidates });
-  stage("directions");
-  // D8 counts each cell's donors as it goes, sparing the accumulation its counting pass
-  const donors = new Uint8Array(z.data.length);
-  const directions = d8Directions(z, cellGeometry, { flatIncrements: flats?.increments, donors, signal });
+/** Depression filling, flats and D8 (lib/hydro/condition.ts: two threads); the filled DEM is a copy. */
+async function conditionAndRoute(elevation: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, signal?: AbortSignal) {
+  const routed = await conditionDem(elevation, cellGeometry, { epsilon: params.epsilonFill, signal, onStage: stage });
+  const { fill, flats } = routed;
   return {
-    directions,
-    donors,
+    z: routed.dem,
+    directions: routed.directions,
+    donors: routed.donors,
     conditioning: {
       method: params.epsilonFill ? "priority-flood-epsilon" : "priority-flood-with-flat-resolution",
       cellsRaised: fill.cellsRaised, maxRaiseM: fill.maxRaise,
@@ -233,10 +223,10 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   const { width, height } = dem.elevation;
   const { cellGeometry, georef } = dem;
   const n = width * height;
-  // the pipeline conditions a copy when it was handed a DEM, so the caller's elevations stay as they were
-  const z = makeGrid("dem" in input ? dem.elevation.data.slice() : dem.elevation.data, width, height);
-
-  const { directions, donors, conditioning } = conditionAndRoute(z, cellGeometry, params, stage, signal);
+  // conditioning works on a copy (the caller's elevations stay as they were); a DEM read here lets its
+  // unfilled elevations go, as nothing after needs them
+  const { z, directions, donors, conditioning } = await conditionAndRoute(dem.elevation, cellGeometry, params, stage, signal);
+  if (!("dem" in input)) dem.elevation = z;
   stage("accumulation");
   const acc = accumulate(directions, donors, z, cellGeometry, signal);
   const flowLengthM = acc.flowLengthM;

@@ -6,11 +6,8 @@ import { closeSync, existsSync, mkdtempSync, openSync, readSync, rmSync, writeFi
 import os from "node:os";
 import path from "node:path";
 import { readDem, type Dem } from "@/lib/raster/read-geotiff";
-import { projectedCellGeometry, type CellGeometry } from "@/lib/raster/cell-geometry";
-import type { Grid } from "@/lib/raster/grid";
-import { priorityFlood } from "@/lib/hydro/priority-flood";
-import { resolveFlats } from "@/lib/hydro/flats";
-import { d8Directions } from "@/lib/hydro/d8";
+import { projectedCellGeometry } from "@/lib/raster/cell-geometry";
+import { conditionAndRoute, type ConditionStage } from "@/lib/hydro/condition";
 import { flowAccumulation } from "@/lib/hydro/flow-accumulation";
 import { channelMask, km2ToM2 } from "@/lib/hydro/channels";
 import { networkFromRaster } from "@/lib/network/from-raster";
@@ -94,18 +91,6 @@ export function makeSurface(dir: string, size: number): { raw: string; tif: stri
   return { raw, tif };
 }
 
-/** Flat resolution then D8, in a function of its own so the flat increments (4 bytes per cell) are
- *  garbage once the directions exist, as in the pipeline. */
-function routeFlats(grid: Grid<Float32Array>, geometry: CellGeometry, candidates: Int32Array) {
-  const t0 = process.hrtime.bigint();
-  const { increments, ...flatSummary } = resolveFlats(grid, { candidates });
-  const flatsS = seconds(t0);
-  const t1 = process.hrtime.bigint();
-  const donors = new Uint8Array(grid.data.length);
-  const directions = d8Directions(grid, geometry, { flatIncrements: increments, donors });
-  return { flatsS, directionsS: seconds(t1), directions, donors, flatSummary };
-}
-
 /** Runs the native reference; under /usr/bin/time when present, for its CPU seconds (user + system),
  *  which a busy machine inflates far less than the wall-clock seconds it prints. */
 function runNative(args: string[], work: string): NativeTimes & { cpuS: number | null } {
@@ -169,19 +154,24 @@ export async function main(argv: string[]): Promise<number> {
     const cells = w * h;
 
     const cpu0 = process.cpuUsage();
+    // one call, as in the pipeline: fill, flats and D8 on two threads (lib/hydro/condition.ts); a stage's
+    // seconds run from its start to the next one's
     const t1 = process.hrtime.bigint();
-    const flatCandidates = new Int32Array((cells + 31) >>> 5);
-    const fill = priorityFlood(grid, { flatCandidates });
-    const fillS = seconds(t1);
-    const { flatsS, directionsS, directions, donors, flatSummary } = routeFlats(grid, geometry, flatCandidates);
+    const starts: Partial<Record<ConditionStage, bigint>> = {};
+    const routed = await conditionAndRoute(grid, geometry, { onStage: (stage) => { starts[stage] = process.hrtime.bigint(); } });
     const t4 = process.hrtime.bigint();
-    const acc = flowAccumulation(directions, grid, geometry, { donors });
+    const fillS = Number((starts.flats as bigint) - t1) / 1e9;
+    const flatsS = Number((starts.directions as bigint) - (starts.flats as bigint)) / 1e9;
+    const directionsS = Number(t4 - (starts.directions as bigint)) / 1e9;
+    const { fill, directions, flats: flatSummary } = routed;
+    const filled = routed.dem;
+    const acc = flowAccumulation(directions, filled, geometry, { donors: routed.donors });
     const accumulationS = seconds(t4);
     const channelCells = channelMask(acc.areaM2, thresholdM2).reduce((s, v) => s + v, 0);
     const t5 = process.hrtime.bigint();
     const transform = dem?.georef.transform ?? { originX: 0, originY: h * cellM, pixelSizeX: cellM, pixelSizeY: cellM };
     const raster = networkFromRaster({
-      directions, areaM2: acc.areaM2, thresholdM2, elevation, cellGeometry: geometry, transform,
+      directions, areaM2: acc.areaM2, thresholdM2, elevation: filled.data, cellGeometry: geometry, transform,
       crs: dem?.georef.crs.proj4 ?? `EPSG:${SURFACE_EPSG}`,
     });
     const linkOrder = strahlerOrder(raster.network);
@@ -253,6 +243,7 @@ export async function main(argv: string[]): Promise<number> {
       notes: [
         ...notes,
         "conditioning = Priority-Flood (plain queue, slope tracing; it marks the cells the flat resolution tests) + flat resolution; the native fill is Priority-Flood+epsilon, which needs no flat step",
+        "two threads after the fill (lib/hydro/condition.ts): while this one finds the flats, a helper thread (started during the fill, counted in it) sets the D8 directions from elevations alone; then the two flat searches run at once. conditioningFlats spans that; directions is only the routing of the flat cells after it, so its ratio to the native D8 understates D8's work. Single-threaded stages otherwise; cpuSeconds counts both threads",
         "ordering = links from the D8 grid (lib/network/from-raster) + Strahler order of links; the native orders cells",
         "cpuSeconds: user + system CPU of our comparable stages against the whole native process (its file read included); wall-clock ratios are the target's measure but swing with the machine's load",
       ],
