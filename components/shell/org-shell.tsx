@@ -7,7 +7,7 @@ import { useEffect, type ReactNode } from "react";
 import { ApiProblem, api, describeProblem } from "@/components/data/api";
 import { allows, useMe } from "@/components/data/use-me";
 import { NAV_ITEMS } from "@/components/shell/nav";
-import { Wordmark } from "@/components/shell/wordmark";
+import { TopBar } from "@/components/shell/top-bar";
 import { Alert } from "@/components/ui/alert";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
@@ -53,26 +53,15 @@ export function OrgShell({ devMail, children }: OrgShellProps) {
 
   return (
     <div className="flex flex-1 flex-col">
-      <header className="border-b border-paper-line bg-white">
-        <div className="mx-auto flex max-w-console items-center gap-4 px-6 py-2.5">
-          <Link href="/" className="no-underline hover:no-underline">
-            <Wordmark />
-          </Link>
-          <span className="text-graphite-faint" aria-hidden="true">
-            /
-          </span>
-          <span className="font-medium" aria-label="Organisation">
-            {me.data.org.name}
-          </span>
-          <div className="ml-auto flex items-center gap-3 text-dense">
-            <span className="text-graphite-soft">{me.data.user?.email}</span>
-            {me.data.role !== undefined && <Badge>{me.data.role}</Badge>}
-            <Button size="sm" variant="quiet" onClick={() => signOut.mutate(false)} disabled={signOut.isPending}>
-              Sign out
-            </Button>
-          </div>
+      <TopBar place={me.data.org.name} placeLabel="Organisation">
+        <div className="ml-auto flex items-center gap-3 text-dense">
+          <span className="text-graphite-soft">{me.data.user?.email}</span>
+          {me.data.role !== undefined && <Badge>{me.data.role}</Badge>}
+          <Button size="sm" variant="quiet" onClick={() => signOut.mutate(false)} disabled={signOut.isPending}>
+            Sign out
+          </Button>
         </div>
-      </header>
+      </TopBar>
       <div className="mx-auto flex w-full max-w-console flex-1 gap-6 px-6 py-6">
         <nav aria-label="Console" className="w-40 shrink-0">
           <ul className="flex flex-col gap-0.5">
