@@ -9,7 +9,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { z } from "zod";
 import { readDem, type Dem } from "@/lib/raster/read-geotiff";
-import { zFactorParam } from "@/lib/pipelines/dem-params";
+import { bandParam, epsgParam, zFactorParam } from "@/lib/pipelines/dem-params";
 import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import { lonLatTransformer } from "@/lib/raster/reproject";
 import { makeGrid, type Grid } from "@/lib/raster/grid";
@@ -69,8 +69,8 @@ export const drainageParamsSchema = z.object({
     .default({ method: "area", km2: 1 })
     .describe("how channels are separated from hillslopes: a fixed contributing area, or the constant drop test (Tarboton et al. 1991); default area 1 km²"),
   epsilonFill: z.boolean().default(false).describe("fill depressions with a minimal gradient instead of resolving flats without altering elevations; default false"),
-  band: z.number().int().min(1).max(65535).optional().describe("1-based band of the GeoTIFF; required when it has several"),
-  epsg: z.number().int().min(1024).max(32767).optional().describe("EPSG code of the DEM's CRS, when the file lacks one or states it wrongly"),
+  band: bandParam,
+  epsg: epsgParam,
   zFactor: zFactorParam,
   basins: basinSelection.default({ mode: "all" }).describe("which basins the statistics cover; default all"),
   excludeHighestOrder: z.boolean().default(false).describe("leave the highest Strahler order out of the Horton fits; default false"),

@@ -9,7 +9,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { z } from "zod";
 import { readDem, type Dem, type Georeference } from "@/lib/raster/read-geotiff";
-import { zFactorParam } from "@/lib/pipelines/dem-params";
+import { bandParam, epsgParam, zFactorParam } from "@/lib/pipelines/dem-params";
 import { writeGeoTiff } from "@/lib/raster/write-geotiff";
 import type { Grid } from "@/lib/raster/grid";
 import type { CellGeometry } from "@/lib/raster/cell-geometry";
@@ -53,8 +53,8 @@ export const surfaceParamsSchema = z.object({
     .describe(`share of valid cells a local window needs, else the map holds nodata; (0, 1], default ${DEFAULT_MIN_VALID_FRACTION}`),
   profiles: z.array(z.object({ from: cellPoint, to: cellPoint })).max(20).optional()
     .describe("transects in cell coordinates, up to 20; default the middle row and the middle column"),
-  band: z.number().int().min(1).max(65535).optional().describe("1-based band of the GeoTIFF; required when it has several"),
-  epsg: z.number().int().min(1024).max(32767).optional().describe("EPSG code of the DEM's CRS, when the file lacks one or states it wrongly"),
+  band: bandParam,
+  epsg: epsgParam,
   zFactor: zFactorParam,
 });
 
