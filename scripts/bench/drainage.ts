@@ -165,6 +165,7 @@ export async function main(argv: string[]): Promise<number> {
     const directionsS = Number(t4 - (starts.directions as bigint)) / 1e9;
     const { fill, directions, flats: flatSummary } = routed;
     const filled = routed.dem;
+    if (dem) dem.elevation = filled; // as in the pipeline: the unfilled elevations may go
     const acc = flowAccumulation(directions, filled, geometry, { donors: routed.donors });
     const accumulationS = seconds(t4);
     const channelCells = channelMask(acc.areaM2, thresholdM2).reduce((s, v) => s + v, 0);
