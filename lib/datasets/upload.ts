@@ -17,6 +17,7 @@ import type { DecodeCheck, DecodeCheckRequest } from "@/lib/datasets/decode-chec
 import { discardStaged, PayloadTooLargeError, stageToTempFile, type StagedFile } from "@/lib/ingest/stream-to-store";
 import type { DatasetFormat } from "@/lib/jobs/kinds";
 import type { ObjectStore } from "@/lib/storage";
+import { UNCOMPRESSED } from "@/lib/raster/read-geotiff";
 
 /** Seconds a client is told to wait when every inspection slot is taken. */
 const BUSY_RETRY_AFTER_S = 5;
@@ -103,7 +104,7 @@ export async function uploadDataset(
   let decoded: DecodeCheck | null = null;
   try {
     inspection = (await inspectUpload(staged.path, { declaredKind: format, filename, epsg })).inspection;
-    if (inspection.kind === "geotiff" && inspection.raster.compression !== "none"
+    if (inspection.kind === "geotiff" && inspection.raster.compression !== UNCOMPRESSED
       && inspection.raster.width * inspection.raster.height <= DECODE_CHECK_MAX_CELLS) {
       const request: DecodeCheckRequest = { path: path.resolve(staged.path), epsg, cellBudget: DECODE_CHECK_MAX_CELLS };
       decoded = (await runInSandbox<DecodeCheck>(DECODE_CHECK_ENTRY, request, {}, { slots: INSPECTION_SLOTS })).result;

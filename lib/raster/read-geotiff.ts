@@ -62,8 +62,10 @@ export interface ReadDemOptions {
   signal?: AbortSignal;
 }
 
+/** The `compression` of a raster whose blocks are stored as they are (TIFF 6.0 Compression = 1). */
+export const UNCOMPRESSED = "None";
 const COMPRESSION: Record<number, string> = {
-  1: "None", 5: "LZW", 8: "Deflate", 32946: "Deflate", 32773: "PackBits", 34887: "LERC", 50000: "Zstd",
+  1: UNCOMPRESSED, 5: "LZW", 8: "Deflate", 32946: "Deflate", 32773: "PackBits", 34887: "LERC", 50000: "Zstd",
 };
 const UNSUPPORTED_COMPRESSION: Record<number, string> = {
   2: "CCITT RLE", 3: "CCITT Group 3 fax", 4: "CCITT Group 4 fax", 6: "old-style JPEG",
