@@ -28,7 +28,7 @@ export function db(): Db {
 
 /**
  * A statement built once per handle and then run as a named prepared statement (PostgreSQL 15 manual, PREPARE):
- * the hot look-ups of every API request (the API key, the job) skip Drizzle's query building and the server's
+ * the statements of every API request (the API key, the job, the rate-limit count) skip Drizzle's query building and the server's
  * parse and plan after the first run on each connection. Keyed by handle, so a transaction gets its own.
  */
 export function preparedFor<Q>(db: Db, name: string, build: (db: Db) => Q): Q {
