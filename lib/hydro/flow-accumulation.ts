@@ -61,9 +61,10 @@ export function flowAccumulation(
   // cell counts start at 0 and need no pass of their own.
   const cells = new Uint32Array(n);
   const areaM2 = new Float64Array(n);
-  // On a projected grid every cell has one area: accumulate counts only and write each cell's area
-  // once, when its count is complete (one rounding instead of one per addition, half the memory
-  // traffic in the walk). Otherwise each valid cell starts with its own area, added to before it joins.
+  // On a projected grid every cell has one area: accumulate counts only and write the areas after the
+  // walk in one sequential pass (one rounding instead of one per addition, and the walk's scattered
+  // writes touch the 4-byte counts alone). Otherwise each valid cell starts with its own area, added to
+  // before it joins.
   const uniformArea = geometry.area.every((a) => a === geometry.area[0]);
   const cellArea = h > 0 ? geometry.area[0] : 0;
   // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
@@ -120,7 +121,6 @@ export function flowAccumulation(
       order[tail++] = c;
       donors[c] = DONE;
       const count = ++cells[c];
-      if (uniformArea) areaM2[c] = count * cellArea;
       const d = dir[c];
       if (d === noFlow) {
         outlets++;
@@ -136,5 +136,6 @@ export function flowAccumulation(
   if (tail !== validCells) {
     throw new RangeError(`the directions form a cycle through ${validCells - tail} cells; D8 over a DEM cannot`);
   }
+  if (uniformArea) for (let i = 0; i < n; i++) areaM2[i] = cells[i] * cellArea; // 0 on nodata
   return { cells, areaM2, order, outlets, validCells };
 }
