@@ -34,7 +34,7 @@ export interface Conditioned {
  * thread starts while the fill runs, then sets the D8 directions of every cell from the elevations
  * alone, which do not depend on the flats (flat cells get NO_FLOW), while this thread finds the flats;
  * then the two breadth-first searches of the flat resolution run at once, towards lower terrain in the
- * helper and from higher terrain here. Last, this thread routes the flat cells by their increments. The
+ * helper and from higher terrain here. Last, both threads route the flat cells by their increments. The
  * results are those of priorityFlood, resolveFlats and d8Directions run one after another.
  */
 export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry: CellGeometry, options: ConditionOptions = {}): Promise<Conditioned> {
@@ -77,7 +77,13 @@ export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry:
     const { increments, ...flats } = finishFlats(search, towards, maxAway, reached, signal);
 
     onStage?.("directions");
-    flatDescent(dem, inv, increments, dir, donors, signal);
+    // The flat cells drain on both threads, a half each, but for the two rows at the middle: a cell adds
+    // to the donor count of a neighbour, so each thread's cells stay off the rows the other one adds to.
+    const middle = h >> 1;
+    const southern = helper.run("flatDescentRows", z, w, h, inv, increments, dir, donors, middle + 1, h);
+    flatDescent(dem, inv, increments, dir, donors, signal, 0, middle - 1);
+    await southern;
+    flatDescent(dem, inv, increments, dir, donors, signal, Math.max(0, middle - 1), middle + 1);
     return { dem, directions: { data: dir, width: w, height: h }, donors, fill, flats };
   } finally {
     helper.close();

@@ -90,15 +90,17 @@ export function d8Directions(dem: Grid<Float32Array>, geometry: CellGeometry, op
   return { data: dir, width: w, height: h };
 }
 
-/** flatDescentRows over the whole grid, looking at the signal every ABORT_CHECK_ROWS rows: the second
- *  half of d8Directions, once steepestDescentRows has set `dir` (and counted into `donors`). */
+/** flatDescentRows over rows y0 … y1 − 1 (default: the whole grid), looking at the signal every
+ *  ABORT_CHECK_ROWS rows: the second half of d8Directions, once steepestDescentRows has set `dir` (and
+ *  counted into `donors`). */
 export function flatDescent(
   dem: Grid<Float32Array>, inv: Float64Array, inc: Int32Array, dir: Uint8Array, donors: Uint8Array | null, signal?: AbortSignal,
+  y0 = 0, y1 = dem.height,
 ): void {
   const { data: z, width: w, height: h } = dem;
-  for (let y = 0; y < h; y += ABORT_CHECK_ROWS) {
+  for (let y = y0; y < y1; y += ABORT_CHECK_ROWS) {
     signal?.throwIfAborted();
-    flatDescentRows(z, w, h, inv, inc, dir, donors, y, Math.min(h, y + ABORT_CHECK_ROWS));
+    flatDescentRows(z, w, h, inv, inc, dir, donors, y, Math.min(y1, y + ABORT_CHECK_ROWS));
   }
 }
 

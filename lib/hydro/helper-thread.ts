@@ -2,11 +2,11 @@
 // thread evaluates the kernels' own source text as plain JavaScript, so it needs no TypeScript loader under tsx,
 // vitest or a bundle, starts in tens of milliseconds, and runs the very code the calling thread runs.
 import { Worker } from "node:worker_threads";
-import { steepestDescentRows } from "@/lib/hydro/d8";
+import { flatDescentRows, steepestDescentRows } from "@/lib/hydro/d8";
 import { stepsTowardsLower } from "@/lib/hydro/flats";
 
 /** The kernels the thread can run: each self-contained (no imports, closures or inner functions). */
-const KERNELS = { steepestDescentRows, stepsTowardsLower };
+const KERNELS = { steepestDescentRows, stepsTowardsLower, flatDescentRows };
 type Kernels = typeof KERNELS;
 type KernelName = keyof Kernels;
 
