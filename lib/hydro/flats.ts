@@ -107,6 +107,8 @@ export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shar
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
+  const outside = (j: number) => (candidates[j >> 5] & (1 << (j & 31))) === 0;
+  const offFlats = (j: number) => outside(j) || state[j] === 0;
   const runs = new FlatRuns(w);
   // Room for every candidate, so the starting cells go into the queues as they are found.
   const room = countBits(candidates);
@@ -128,18 +130,15 @@ export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shar
         const i = (wi << 5) + 31 - Math.clz32(low);
         const zc = z[i];
         if (zc !== zc) continue;
-        let flat = true, higher = false, wayOut = false;
-        for (let k = 0; k < 8; k++) {
-          const j = i + offsets[k];
-          const zj = z[j];
-          if (!(zj >= zc)) {
-            flat = false;
-            break;
-          }
-          if (zj > zc) higher = true;
-          else if ((candidates[j >> 5] & (1 << (j & 31))) === 0 || (j < i && state[j] === 0)) wayOut = true;
-        }
-        if (flat) {
+        // the eight neighbours written out, as in stepsFromHigher: four after i, then four before it
+        const e = z[i + 1], se = z[i + w + 1], s = z[i + w], sw = z[i + w - 1];
+        const we = z[i - 1], nw = z[i - w - 1], nn = z[i - w], ne = z[i - w + 1];
+        if (e >= zc && se >= zc && s >= zc && sw >= zc && we >= zc && nw >= zc && nn >= zc && ne >= zc) {
+          const higher = e > zc || se > zc || s > zc || sw > zc || we > zc || nw > zc || nn > zc || ne > zc;
+          // a neighbour of equal elevation off the flats: outside the candidates, or tested before and not flat
+          const wayOut = (e === zc && outside(i + 1)) || (se === zc && outside(i + w + 1)) || (s === zc && outside(i + w)) ||
+            (sw === zc && outside(i + w - 1)) || (we === zc && offFlats(i - 1)) || (nw === zc && offFlats(i - w - 1)) ||
+            (nn === zc && offFlats(i - w)) || (ne === zc && offFlats(i - w + 1));
           state[i] = ~((higher ? 1 : NOT_REACHED) | (wayOut ? WAY_OUT : 0));
           if (higher) fromHigher[highEdges++] = i;
           if (wayOut) towardsLower[wayOuts++] = i;
@@ -147,10 +146,10 @@ export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shar
           runs.add(i - row);
         } else {
           // a candidate that is not flat: the flat cells of its elevation tested before it have a way out
-          for (let k = 0; k < 8; k++) {
+          for (let k = 4; k < 8; k++) { // west, north-west, north, north-east: the neighbours before i
             const j = i + offsets[k];
             // (WAY_OUT set in the state is the bit clear in the cell's value, its complement)
-            if (j < i && state[j] !== 0 && z[j] === zc && (state[j] & WAY_OUT) !== 0) {
+            if (state[j] !== 0 && z[j] === zc && (state[j] & WAY_OUT) !== 0) {
               state[j] &= ~WAY_OUT;
               towardsLower[wayOuts++] = j;
             }
@@ -170,22 +169,24 @@ export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shar
 
 /** Step 2: steps from higher terrain, breadth-first from the `highEdges` cells at the front of
  *  `queue` (room for every flat cell), into the states (the WAY_OUT bit rides along). Returns the
- *  largest number of steps. */
+ *  largest number of steps. The eight neighbours are written out one by one: in V8 that runs about
+ *  twice as fast as a loop over an offset table (measured on the 4096² benchmark surface). */
 export function stepsFromHigher(state: Int32Array, queue: Int32Array, highEdges: number, w: number): number {
   const notReached = 0x3fffffff, wayOut = 1 << 30;
-  const offsets = [1, w + 1, w, w - 1, -1, -w - 1, -w, -w + 1];
   let maxAway = 0;
   for (let head = 0, tail = highEdges; head < tail; head++) {
     const c = queue[head], away = ~state[c] & ~wayOut;
     if (away > maxAway) maxAway = away;
-    for (let k = 0; k < 8; k++) {
-      const j = c + offsets[k];
-      const vj = ~state[j]; // −1 off the flats, never NOT_REACHED
-      if ((vj & ~wayOut) === notReached) {
-        state[j] = ~((away + 1) | (vj & wayOut));
-        queue[tail++] = j;
-      }
-    }
+    const next = away + 1;
+    let j: number, v: number; // v: the neighbour's value (−1 off the flats, never NOT_REACHED)
+    j = c + 1; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c + w + 1; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c + w; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c + w - 1; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c - 1; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c - w - 1; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c - w; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
+    j = c - w + 1; v = ~state[j]; if ((v & ~wayOut) === notReached) { state[j] = ~(next | (v & wayOut)); queue[tail++] = j; }
   }
   return maxAway;
 }
@@ -193,22 +194,23 @@ export function stepsFromHigher(state: Int32Array, queue: Int32Array, highEdges:
 /** Step 3: steps towards lower terrain, breadth-first from the `wayOuts` cells at the front of `queue`
  *  (room for every flat cell), into `towards` (zeroed; the cells with a way out are step 1), over the
  *  cells whose state is negative (the flats; the states themselves are only read, so step 2 may run at
- *  the same time). Returns the number of cells reached. */
+ *  the same time). Returns the number of cells reached. Neighbours written out as in step 2. */
 export function stepsTowardsLower(state: Int32Array, towards: Int32Array, queue: Int32Array, wayOuts: number, w: number): number {
-  const offsets = [1, w + 1, w, w - 1, -1, -w - 1, -w, -w + 1];
   for (let q = 0; q < wayOuts; q++) towards[queue[q]] = 1;
   let tail = wayOuts;
   for (let head = 0, step = 2; head < tail; step++) {
     const levelEnd = tail;
     for (; head < levelEnd; head++) {
       const c = queue[head];
-      for (let k = 0; k < 8; k++) {
-        const j = c + offsets[k];
-        if (state[j] < 0 && towards[j] === 0) {
-          towards[j] = step;
-          queue[tail++] = j;
-        }
-      }
+      let j: number;
+      j = c + 1; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c + w + 1; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c + w; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c + w - 1; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c - 1; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c - w - 1; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c - w; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
+      j = c - w + 1; if (towards[j] === 0 && state[j] < 0) { towards[j] = step; queue[tail++] = j; }
     }
   }
   return tail;
