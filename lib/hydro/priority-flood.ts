@@ -242,20 +242,40 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   }
   const marks = options.flatCandidates;
   // One bit per cell (n/8 bytes: 2 MB on a 4096² grid, which stays in cache where a byte per cell
-  // would not); cell j is bit j & 31 of word j >> 5.
-  const closed = new Int32Array(words);
+  // would not), with a closed row and one closed cell before and after the grid: cell j is bit j + pad.
+  // A cell's eight neighbours are then three runs of three bits, read in three loads.
+  const pad = w + 1;
+  const closed = new Int32Array(((n + 2 * pad + 31) >>> 5) + 1); // + 1: a run may reach into the next word
+  const close = (j: number) => {
+    closed[(j + pad) >> 5] |= 1 << ((j + pad) & 31);
+  };
+  const isClosed = (j: number) => (closed[(j + pad) >> 5] & (1 << ((j + pad) & 31))) !== 0;
+  for (let j = -pad; j < 0; j++) close(j);
+  for (let j = n; j < n + pad; j++) close(j);
+  /** three bits of the closed set from cell p on */
+  const closedRun = (p: number) => {
+    const q = p + pad, b = q & 31;
+    const v = closed[q >> 5] >>> b;
+    return (b > 29 ? v | (closed[(q >> 5) + 1] << (32 - b)) : v) & 7;
+  };
+  // Bit k of an open-neighbour mask is the neighbour at NEIGHBOUR_OFFSETS[k]: the row above, west and
+  // east, the row below. Each cell is opened once, so a cell has on average one open neighbour when it
+  // is expanded; walking the mask's bits skips the closed ones without a test each.
+  const neighbourOffsets = Int32Array.of(-w - 1, -w, -w + 1, -1, 1, w - 1, w, w + 1);
+  const openNeighbours = (c: number) => {
+    const middle = closedRun(c - 1);
+    return ~(closedRun(c - w - 1) | ((middle & 1) << 3) | ((middle & 4) << 2) | (closedRun(c + w - 1) << 5)) & 0xff;
+  };
   const heap = new RadixQueue();
   const bits = new Int32Array(z.buffer, z.byteOffset, n);
   const pit = new CellQueue();
-  const offsets = new Int32Array(8);
-  for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 
   // Seeds: every valid edge cell. Every edge cell is closed from the start, so an offset that wraps
-  // across the left or right edge lands on a closed cell and one test `0 <= j < n` guards all reads.
+  // across the left or right edge lands on a closed cell, as do those above and below the grid.
   let seedCells = 0;
   let nodataCells = 0;
   const seedEdge = (i: number) => {
-    closed[i >> 5] |= 1 << (i & 31);
+    close(i);
     const zi = z[i];
     if (zi === zi) {
       heap.push(orderedKey(bits[i]), i);
@@ -272,7 +292,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   }
   for (let i = 0; i < n; i++) {
     if (z[i] !== z[i]) {
-      closed[i >> 5] |= 1 << (i & 31);
+      close(i);
       nodataCells++;
     }
   }
@@ -287,8 +307,8 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
           const nx = x + D8_DX[k], ny = y + D8_DY[k];
           if (nx < 0 || ny < 0 || nx >= w || ny >= h) continue;
           const j = ny * w + nx;
-          if ((closed[j >> 5] & (1 << (j & 31))) === 0) {
-            closed[j >> 5] |= 1 << (j & 31);
+          if (!isClosed(j)) {
+            close(j);
             heap.push(orderedKey(bits[j]), j);
             seedCells++;
           }
@@ -299,7 +319,6 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
 
   const traceSlopes = options.traceSlopes !== false;
   const slope = new CellStack();
-  const openNeighbours = new Int32Array(8);
   let cellsRaised = 0;
   let maxRaise = 0;
   let plainQueueCells = 0;
@@ -316,16 +335,12 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
       const t = slope.pop();
       const zt = z[t];
       const level = epsilon ? nextUpFloat32(zt) : zt;
-      // one look at the neighbours: the open ones are kept in case none lies below
-      let open = 0, below = false;
-      for (let k = 0; k < 8; k++) {
-        const j = t + offsets[k];
-        if (j >= 0 && j < n && (closed[j >> 5] & (1 << (j & 31))) === 0) {
-          if (z[j] < level) {
-            below = true;
-            break;
-          }
-          openNeighbours[open++] = j;
+      const open = openNeighbours(t);
+      let below = false;
+      for (let m = open; m !== 0; m &= m - 1) {
+        if (z[t + neighbourOffsets[31 - Math.clz32(m & -m)]] < level) {
+          below = true;
+          break;
         }
       }
       if (below) {
@@ -333,9 +348,9 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
         continue;
       }
       slopeTracedCells++;
-      for (let q = 0; q < open; q++) {
-        const j = openNeighbours[q];
-        closed[j >> 5] |= 1 << (j & 31);
+      for (let m = open; m !== 0; m &= m - 1) {
+        const j = t + neighbourOffsets[31 - Math.clz32(m & -m)];
+        close(j);
         if (marks !== undefined && z[j] === zt) marks[j >> 5] |= 1 << (j & 31);
         slope.push(j);
       }
@@ -357,10 +372,9 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
       drainLevel = zc;
     } else break;
     const level = epsilon ? nextUpFloat32(zc) : zc;
-    for (let k = 0; k < 8; k++) {
-      const j = c + offsets[k];
-      if (j < 0 || j >= n || (closed[j >> 5] & (1 << (j & 31))) !== 0) continue;
-      closed[j >> 5] |= 1 << (j & 31);
+    for (let m = openNeighbours(c); m !== 0; m &= m - 1) {
+      const j = c + neighbourOffsets[31 - Math.clz32(m & -m)];
+      close(j);
       const zj = z[j];
       if (zj < level) {
         cellsRaised++;
