@@ -61,15 +61,18 @@ export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry:
     z.set(elevation.data);
     const dem = { data: z, width: w, height: h };
     const candidates = new Int32Array((n + 31) >>> 5);
+    // the arrays of the later stages get their pages mapped by the helper while this thread fills
+    const dir = bytes(n), donors = bytes(n);
+    const state = new Int32Array(new SharedArrayBuffer(4 * n)), towards = new Int32Array(new SharedArrayBuffer(4 * n));
+    const touched = helper.run("touchPages", dir, donors, state, towards);
     const fill = priorityFlood(dem, { signal, flatCandidates: candidates });
+    await touched;
 
     onStage?.("flats");
     const inv = new Float64Array(new SharedArrayBuffer(8 * 8 * h));
     inv.set(d8InverseSteps(geometry));
-    const dir = bytes(n), donors = bytes(n);
     const steepest = helper.run("steepestDescentRows", z, w, h, inv, dir, donors, 0, h);
-    const search = findFlats(dem, { candidates, signal, shared: true });
-    const towards = new Int32Array(new SharedArrayBuffer(4 * n));
+    const search = findFlats(dem, { candidates, signal, shared: true, state });
     const towardsLower = helper.run("stepsTowardsLower", search.state, towards, search.towardsLower, search.wayOuts, w);
     const maxAway = stepsFromHigher(search.state, search.fromHigher, search.highEdges, w);
     signal?.throwIfAborted();

@@ -87,9 +87,9 @@ export function resolveFlats(dem: Grid<Float32Array>, options: FlatOptions = {})
  * flat), step 1 towards lower terrain: a neighbour outside the candidates is off the flats, one tested
  * before is known, and one tested after marks it then. The flats are counted on the way by joining
  * runs of flat cells that touch the runs of the row above. With `shared`, the arrays the searches
- * work on are SharedArrayBuffers, for a helper thread.
+ * work on are SharedArrayBuffers, for a helper thread; `state` may be given, zeroed, one Int32 a cell.
  */
-export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shared?: boolean } = {}): FlatSearch {
+export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shared?: boolean; state?: Int32Array } = {}): FlatSearch {
   const { data: z, width: w, height: h } = dem;
   if (z.length !== w * h) {
     throw new RangeError(`grid data has ${z.length} cells, expected ${w}×${h} = ${w * h}`);
@@ -103,7 +103,8 @@ export function findFlats(dem: Grid<Float32Array>, options: FlatOptions & { shar
   signal?.throwIfAborted();
   const candidates = options.candidates ?? interiorCells(w, h);
   const ints = (length: number) => (options.shared ? new Int32Array(new SharedArrayBuffer(4 * length)) : new Int32Array(length));
-  const state = ints(n);
+  if (options.state !== undefined && options.state.length !== n) throw new RangeError(`flat states have ${options.state.length} cells, the grid has ${n}`);
+  const state = options.state ?? ints(n);
   const offsets = new Int32Array(8);
   for (let k = 0; k < 8; k++) offsets[k] = D8_DY[k] * w + D8_DX[k];
 

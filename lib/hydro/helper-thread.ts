@@ -5,8 +5,23 @@ import { Worker } from "node:worker_threads";
 import { flatDescentRows, steepestDescentRows } from "@/lib/hydro/d8";
 import { stepsTowardsLower } from "@/lib/hydro/flats";
 
+/** Writes a zero into every 4 KiB page of each array (zeroed, and not used elsewhere until this returns),
+ *  so that the operating system maps their pages here, and not at their first use on the other thread,
+ *  where each first touch of a page costs about 1.7 µs on this kind of machine (measured: 256 MB in ~110 ms). */
+export function touchPages(...arrays: ArrayBufferView[]): number {
+  let pages = 0;
+  for (const a of arrays) {
+    const bytes = new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
+    for (let i = 0; i < bytes.length; i += 4096) {
+      bytes[i] = 0;
+      pages++;
+    }
+  }
+  return pages;
+}
+
 /** The kernels the thread can run: each self-contained (no imports, closures or inner functions). */
-const KERNELS = { steepestDescentRows, stepsTowardsLower, flatDescentRows };
+const KERNELS = { steepestDescentRows, stepsTowardsLower, flatDescentRows, touchPages };
 type Kernels = typeof KERNELS;
 type KernelName = keyof Kernels;
 
