@@ -27,6 +27,9 @@ export interface Conditioned {
   fill: PriorityFloodResult;
   /** null with `epsilon` */
   flats: Omit<FlatResolution, "increments"> | null;
+  /** two arrays of one Int32 a cell the conditioning is done with (contents undefined), their pages
+   *  mapped already, for flowAccumulation's `reuse`; null with `epsilon` */
+  spare: [Int32Array, Int32Array] | null;
 }
 
 /**
@@ -51,7 +54,7 @@ export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry:
     const fill = priorityFlood(dem, { epsilon: true, signal });
     onStage?.("directions");
     const donors = new Uint8Array(n);
-    return { dem, directions: d8Directions(dem, geometry, { donors, signal }), donors, fill, flats: null };
+    return { dem, directions: d8Directions(dem, geometry, { donors, signal }), donors, fill, flats: null, spare: null };
   }
 
   const helper = new HelperThread(); // it starts up beside the fill
@@ -87,7 +90,7 @@ export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry:
     flatDescent(dem, inv, increments, dir, donors, signal, 0, middle - 1);
     await southern;
     flatDescent(dem, inv, increments, dir, donors, signal, Math.max(0, middle - 1), middle + 1);
-    return { dem, directions: { data: dir, width: w, height: h }, donors, fill, flats };
+    return { dem, directions: { data: dir, width: w, height: h }, donors, fill, flats, spare: [state, towards] };
   } finally {
     helper.close();
   }

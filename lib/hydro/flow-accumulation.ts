@@ -38,6 +38,9 @@ export function flowAccumulation(
      *  skipped, and with it the checks of each direction (D8 makes none that leave the grid or enter
      *  nodata); the cycle check stays. Consumed: it ends with every valid cell at 255. */
     donors?: Uint8Array;
+    /** two arrays of one Int32 a cell to use instead of new ones (conditionAndRoute's `spare`, whose
+     *  pages are mapped already), for the cell counts (as Uint32) and the order; contents do not matter */
+    reuse?: [Int32Array, Int32Array];
   } = {},
 ): FlowAccumulation {
   const { width: w, height: h } = directions;
@@ -59,7 +62,11 @@ export function flowAccumulation(
 
   // Each cell counts itself when it joins the order (its donors have all been added by then), so the
   // cell counts start at 0 and need no pass of their own.
-  const cells = new Uint32Array(n);
+  const reuse = options.reuse;
+  if (reuse !== undefined && (reuse[0].length !== n || reuse[1].length !== n)) {
+    throw new RangeError(`the arrays to reuse have ${reuse[0].length} and ${reuse[1].length} cells, the grid has ${n}`);
+  }
+  const cells = reuse ? new Uint32Array(reuse[0].buffer, reuse[0].byteOffset, n).fill(0) : new Uint32Array(n);
   const areaM2 = new Float64Array(n);
   // On a projected grid every cell has one area: accumulate counts only and write the areas after the
   // walk in one sequential pass (one rounding instead of one per addition, and the walk's scattered
@@ -109,7 +116,7 @@ export function flowAccumulation(
   // Kahn's order, walked along the flow: scan for sources in row order and follow each one downstream
   // for as long as the cell reached has no donor left to wait for. Each cell is appended to `order`
   // once, after all its donors, and the walks keep memory access local. A passed cell is marked DONE.
-  const order = new Int32Array(validCells);
+  const order = reuse ? reuse[1].subarray(0, validCells) : new Int32Array(validCells);
   let tail = 0, outlets = 0;
   for (let s = 0; s < n; s++) {
     if ((s & abortMask) === 0) signal?.throwIfAborted();

@@ -195,6 +195,7 @@ async function conditionAndRoute(elevation: Grid<Float32Array>, cellGeometry: Ce
     z: routed.dem,
     directions: routed.directions,
     donors: routed.donors,
+    spare: routed.spare as [Int32Array, Int32Array] | null,
     conditioning: {
       method: params.epsilonFill ? "priority-flood-epsilon" : "priority-flood-with-flat-resolution",
       cellsRaised: fill.cellsRaised, maxRaiseM: fill.maxRaise,
@@ -203,10 +204,12 @@ async function conditionAndRoute(elevation: Grid<Float32Array>, cellGeometry: Ce
   };
 }
 
-/** Contributing areas and flow lengths; the cell counts and the topological order (8 bytes a cell)
- *  are dropped on return, as nothing after this needs them. */
-function accumulate(directions: Grid<Uint8Array>, donors: Uint8Array, z: Grid<Float32Array>, cellGeometry: CellGeometry, signal?: AbortSignal) {
-  const acc = flowAccumulation(directions, z, cellGeometry, { signal, donors });
+/** Contributing areas and flow lengths; the cell counts and the topological order (8 bytes a cell, in
+ *  the conditioning's spare arrays when there are some) are dropped on return, as nothing after needs them. */
+function accumulate(
+  directions: Grid<Uint8Array>, donors: Uint8Array, spare: [Int32Array, Int32Array] | null, z: Grid<Float32Array>, cellGeometry: CellGeometry, signal?: AbortSignal,
+) {
+  const acc = flowAccumulation(directions, z, cellGeometry, { signal, donors, reuse: spare ?? undefined });
   const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
   return { areaM2: acc.areaM2, flowLengthM, validCells: acc.validCells, outletCells: acc.outlets };
 }
@@ -225,10 +228,12 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   const n = width * height;
   // conditioning works on a copy (the caller's elevations stay as they were); a DEM read here lets its
   // unfilled elevations go, as nothing after needs them
-  const { z, directions, donors, conditioning } = await conditionAndRoute(dem.elevation, cellGeometry, params, stage, signal);
+  const conditioned = await conditionAndRoute(dem.elevation, cellGeometry, params, stage, signal);
+  const { z, directions, donors, conditioning } = conditioned;
   if (!("dem" in input)) dem.elevation = z;
   stage("accumulation");
-  const acc = accumulate(directions, donors, z, cellGeometry, signal);
+  const acc = accumulate(directions, donors, conditioned.spare, z, cellGeometry, signal);
+  conditioned.spare = null; // now the cell counts and the order, which nothing after needs
   const flowLengthM = acc.flowLengthM;
 
   stage("channels");

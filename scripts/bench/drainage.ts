@@ -166,7 +166,7 @@ export async function main(argv: string[]): Promise<number> {
     const { fill, directions, flats: flatSummary } = routed;
     const filled = routed.dem;
     if (dem) dem.elevation = filled; // as in the pipeline: the unfilled elevations may go
-    const acc = flowAccumulation(directions, filled, geometry, { donors: routed.donors });
+    const acc = flowAccumulation(directions, filled, geometry, { donors: routed.donors, reuse: routed.spare ?? undefined });
     const accumulationS = seconds(t4);
     const channelCells = channelMask(acc.areaM2, thresholdM2).reduce((s, v) => s + v, 0);
     const t5 = process.hrtime.bigint();

@@ -39,6 +39,7 @@ describe("conditionAndRoute()", () => {
       expect(routed.donors).toEqual(expected.donors);
       expect(routed.fill).toEqual(expected.fill);
       expect(routed.flats).toEqual(expected.flats);
+      expect(routed.spare?.map((a) => a.length)).toEqual([dem.data.length, dem.data.length]);
       expect(dem.data).toEqual(before);
     }
   });

@@ -119,6 +119,22 @@ describe("flowAccumulation()", () => {
     }
   });
 
+  it("in reused arrays holding old values gives the same cells, areas and order, and refuses arrays of the wrong size (invariant)", () => {
+    const dem = randomDem(45, 37, 65, 0.06);
+    priorityFlood(dem);
+    const dir = d8Directions(dem, projectedCellGeometry(37, 30, 30), { flatIncrements: resolveFlats(dem).increments });
+    const plain = flowAccumulation(dir, dem, projectedCellGeometry(37, 30, 30));
+    const n = dem.data.length;
+    const spare: [Int32Array, Int32Array] = [new Int32Array(n).fill(-7), new Int32Array(n).fill(99)];
+    const reused = flowAccumulation(dir, dem, projectedCellGeometry(37, 30, 30), { reuse: spare });
+    expect(reused.cells).toEqual(plain.cells);
+    expect(reused.areaM2).toEqual(plain.areaM2);
+    expect(reused.order).toEqual(plain.order);
+    expect(reused.cells.buffer).toBe(spare[0].buffer);
+    expect(reused.order.buffer).toBe(spare[1].buffer);
+    expect(() => flowAccumulation(dir, dem, projectedCellGeometry(37, 30, 30), { reuse: [new Int32Array(n - 1), new Int32Array(n)] })).toThrow(RangeError);
+  });
+
   it("rejects directions that form a cycle, leave the grid or enter nodata", () => {
     const g = projectedCellGeometry(1, 1, 1);
     const dem = makeGrid(Float32Array.of(1, 1, NaN), 3, 1);
