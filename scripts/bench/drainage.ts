@@ -244,7 +244,7 @@ export async function main(argv: string[]): Promise<number> {
       notes: [
         ...notes,
         "conditioning = Priority-Flood (plain queue, slope tracing; it marks the cells the flat resolution tests) + flat resolution; the native fill is Priority-Flood+epsilon, which needs no flat step",
-        "two threads after the fill (lib/hydro/condition.ts): while this one finds the flats, a helper thread (started during the fill, counted in it) sets the D8 directions from elevations alone; then the two flat searches run at once. conditioningFlats spans that; directions is only the routing of the flat cells after it, so its ratio to the native D8 understates D8's work. Single-threaded stages otherwise; cpuSeconds counts both threads",
+        "two threads (lib/hydro/condition.ts): during the fill a helper thread starts and maps the pages of the later stages' arrays; then, while this one finds the flats, it sets the D8 directions from elevations alone; then the two flat searches run at once, and last both route the flat cells, half the rows each. conditioningFlats spans the D8 directions and the searches; directions is only the routing of the flat cells, so its ratio to the native D8 understates D8's work. Single-threaded stages otherwise; cpuSeconds counts both threads",
         "ordering = links from the D8 grid (lib/network/from-raster) + Strahler order of links; the native orders cells",
         "cpuSeconds: user + system CPU of our comparable stages against the whole native process (its file read included); wall-clock ratios are the target's measure but swing with the machine's load",
       ],
