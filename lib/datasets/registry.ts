@@ -6,9 +6,9 @@ import { datasets, jobs, type DatasetRow } from "@/db/schema";
 import { ApiError } from "@/lib/api/problem";
 import { appendAudit, type AuditInput } from "@/lib/audit/log";
 import type { Clock } from "@/lib/auth/clock";
-import { discardStaged, storeStaged, type StagedFile } from "@/lib/ingest/stream-to-store";
+import { discardStaged, storeStaged, type StagedFile, type StoredContent } from "@/lib/ingest/stream-to-store";
 import type { DatasetFormat } from "@/lib/jobs/kinds";
-import type { ObjectStore } from "@/lib/storage";
+import { contentKey, type ObjectStore } from "@/lib/storage";
 import { decodeCursor, encodeCursor } from "@/lib/jobs/cursor";
 
 export interface Acting {
@@ -25,35 +25,55 @@ export interface NewDataset {
 }
 
 /** Stores the staged bytes and records the dataset; the same bytes already held by the org give its dataset
- *  back (`created: false`). The staged file is always consumed. */
+ *  back (`created: false`). The staged file is always consumed. Runs under the content key's lock (see
+ *  withContentLock), so a delete of another row holding the same bytes cannot remove the object between its
+ *  storing and the new row; the lock is held while the bytes are stored, one connection for that time. */
 export async function acceptDataset(
   db: Db, store: ObjectStore, clock: Clock, acting: Acting, staged: StagedFile, d: NewDataset,
 ): Promise<{ dataset: DatasetRow; created: boolean }> {
-  const existing = await findByHash(db, acting.orgId, staged.sha256);
-  if (existing) {
-    await discardStaged(staged);
-    return { dataset: existing, created: false };
-  }
-  const stored = await storeStaged(store, staged, "datasets", { contentType: d.mediaType });
+  const key = contentKey(staged.sha256, DATASET_KIND);
+  let stored: StoredContent | null = null;
   try {
-    const [row] = await db.insert(datasets).values({
-      orgId: acting.orgId, name: d.name, format: d.format, mediaType: d.mediaType, sha256: staged.sha256,
-      sizeBytes: staged.size, storageKey: stored.key, metadata: d.metadata, createdBy: acting.actor,
-      createdAt: clock.now(), // millisecond precision, as the cursor carries it
-    }).onConflictDoNothing().returning();
-    if (!row) {
-      // a concurrent upload of the same bytes won the insert
-      return { dataset: (await findByHash(db, acting.orgId, staged.sha256))!, created: false };
-    }
-    await appendAudit(db, {
-      orgId: acting.orgId, action: "dataset.create", actor: acting.actor, target: `dataset:${row.id}`, ip: acting.ip,
-      details: { name: row.name, format: row.format, sha256: row.sha256, sizeBytes: row.sizeBytes },
-    }, clock);
-    return { dataset: row, created: true };
+    return await withContentLock(db, key, async (tx) => {
+      const existing = await findByHash(tx, acting.orgId, staged.sha256);
+      if (existing) {
+        await discardStaged(staged);
+        return { dataset: existing, created: false };
+      }
+      stored = await storeStaged(store, staged, DATASET_KIND, { contentType: d.mediaType });
+      const [row] = await tx.insert(datasets).values({
+        orgId: acting.orgId, name: d.name, format: d.format, mediaType: d.mediaType, sha256: staged.sha256,
+        sizeBytes: staged.size, storageKey: stored.key, metadata: d.metadata, createdBy: acting.actor,
+        createdAt: clock.now(), // millisecond precision, as the cursor carries it
+      }).returning();
+      await appendAudit(tx, {
+        orgId: acting.orgId, action: "dataset.create", actor: acting.actor, target: `dataset:${row.id}`, ip: acting.ip,
+        details: { name: row.name, format: row.format, sha256: row.sha256, sizeBytes: row.sizeBytes },
+      }, clock);
+      return { dataset: row, created: true };
+    });
   } catch (e) {
-    if (!stored.reused) await removeObjectIfUnused(db, store, stored.key);
+    await discardStaged(staged);
+    // the transaction rolled back: an object this call stored and no row uses goes too
+    if (stored !== null && !(stored as StoredContent).reused) await withContentLock(db, key, (tx) => removeObjectIfUnused(tx, store, key));
     throw e;
   }
+}
+
+/** The kind under which dataset bytes are stored (lib/storage/keys.ts contentKey). */
+const DATASET_KIND = "datasets";
+
+/**
+ * Runs `work` in a transaction holding an advisory lock on one object key (common practice: Postgres
+ * pg_advisory_xact_lock on a hash of the key, released at commit or rollback). Every path that stores
+ * or removes a dataset object takes it, so the check "no row uses this object" and the row that starts
+ * using it can never interleave.
+ */
+async function withContentLock<T>(db: Db, key: string, work: (tx: Db) => Promise<T>): Promise<T> {
+  return db.transaction(async (tx) => {
+    await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtextextended(${"object:" + key}, 0))`);
+    return work(tx);
+  });
 }
 
 async function findByHash(db: Db, orgId: string, sha256: string): Promise<DatasetRow | undefined> {
@@ -101,19 +121,21 @@ export async function listDatasets(db: Db, orgId: string, f: DatasetFilter): Pro
   return { items, nextCursor: rows.length > f.limit ? encodeCursor(items[items.length - 1].createdAt, items[items.length - 1].id) : null };
 }
 
-/** Refused (409) while a queued or running job reads the dataset; finished jobs keep their results. */
+/** Refused (409) while a queued or running job reads the dataset; finished jobs keep their results. The row,
+ *  the object when no other row uses it, and the audit entry go together, under the content key's lock. */
 export async function deleteDataset(db: Db, store: ObjectStore, clock: Clock, acting: Acting, id: string): Promise<void> {
   const row = await getDataset(db, acting.orgId, id);
-  const deleted = await db.transaction(async (tx) => {
+  await withContentLock(db, row.storageKey, async (tx) => {
     const [busy] = await tx.select({ id: jobs.id }).from(jobs)
       .where(and(eq(jobs.datasetId, id), inArray(jobs.status, ["queued", "running"]))).limit(1).for("update");
     if (busy) throw new ApiError("conflict", `Job ${busy.id} is using this dataset; cancel it or wait for it to finish.`);
-    return tx.delete(datasets).where(eq(datasets.id, id)).returning();
+    const deleted = await tx.delete(datasets).where(eq(datasets.id, id)).returning();
+    if (deleted.length === 0) throw new ApiError("not-found", `No dataset ${id}.`);
+    await appendAudit(tx, {
+      orgId: acting.orgId, action: "dataset.delete", actor: acting.actor, target: `dataset:${id}`, ip: acting.ip,
+      details: { name: row.name, sha256: row.sha256 },
+    }, clock);
+    // last: an object store cannot roll back, so it goes only once everything else has succeeded
+    await removeObjectIfUnused(tx, store, row.storageKey);
   });
-  if (deleted.length === 0) throw new ApiError("not-found", `No dataset ${id}.`);
-  await removeObjectIfUnused(db, store, row.storageKey);
-  await appendAudit(db, {
-    orgId: acting.orgId, action: "dataset.delete", actor: acting.actor, target: `dataset:${id}`, ip: acting.ip,
-    details: { name: row.name, sha256: row.sha256 },
-  }, clock);
 }

@@ -2,9 +2,12 @@
 // metadata, deduplication by content, listing with filters and a cursor, reading, deleting, other orgs' ids.
 import { randomUUID } from "node:crypto";
 import { beforeAll, describe, expect, it } from "vitest";
-import { contentKey } from "@/lib/storage";
-import { ADMIN, OTHER_ADMIN, api, createKey, signIn, stack } from "@/tests/integration/client";
-import { binaryTreeGeoJson, countRows, fixture, sha256, testStore, upload, uploadOk } from "@/tests/integration/data-helpers";
+import { systemClock } from "@/lib/auth/clock";
+import { acceptDataset, deleteDataset } from "@/lib/datasets/registry";
+import { stageToTempFile } from "@/lib/ingest/stream-to-store";
+import { contentKey, type ObjectStore } from "@/lib/storage";
+import { ADMIN, OTHER_ADMIN, api, appDb, createKey, ownerPool, signIn, stack } from "@/tests/integration/client";
+import { binaryTreeGeoJson, countRows, fixture, sha256, stagingDir, testStore, upload, uploadOk } from "@/tests/integration/data-helpers";
 
 let key = "";
 let otherKey = "";
@@ -101,5 +104,48 @@ describe("GET and DELETE /api/v1/datasets", () => {
     expect(await countRows("SELECT count(*) AS n FROM datasets WHERE id = $1", [d.id])).toBe(0);
     expect(await testStore().exists(contentKey(d.sha256, "datasets"))).toBe(false);
     expect(await countRows("SELECT count(*) AS n FROM audit_events WHERE action = 'dataset.delete' AND target = $1", [`dataset:${d.id}`])).toBe(1);
+  });
+});
+
+describe("the same bytes deleted by one organisation while another uploads them", () => {
+  it("keep their stored object: the delete waits for the upload's row under the content key's lock (derived: the object is shared)", async () => {
+    const bytes = new TextEncoder().encode(JSON.stringify({ type: "Feature", properties: { run: randomUUID() }, geometry: { type: "LineString", coordinates: [[0, 0], [0.02, 0.01]] } }));
+    const held = await uploadOk(key, bytes, "application/geo+json");
+    const owner = ownerPool();
+    const orgOf = async (slug: string) => (await owner.query("SELECT id FROM organisations WHERE slug = $1", [slug])).rows[0].id as string;
+    const [tallow, brackenridge] = [await orgOf("tallow-creek"), await orgOf("brackenridge")];
+    await owner.end();
+    const { pool, db } = appDb();
+    // The upload pauses after finding the object already stored (so it will reuse it), before its row exists:
+    // the moment at which a delete that saw no other row would remove the object under it.
+    let reachedPause!: () => void, resume!: () => void;
+    const paused = new Promise<void>((r) => (reachedPause = r)), resumed = new Promise<void>((r) => (resume = r));
+    const store = testStore();
+    const gated = new Proxy(store, {
+      get: (target, name) => name === "head"
+        ? async (k: string) => {
+          const info = await target.head(k);
+          reachedPause();
+          await resumed;
+          return info;
+        }
+        : (target[name as keyof ObjectStore] as unknown as (...a: unknown[]) => unknown).bind?.(target) ?? target[name as keyof ObjectStore],
+    }) as ObjectStore;
+    try {
+      const staged = await stageToTempFile(bytes, stagingDir(), { maxBytes: 1 << 20 });
+      const acting = (orgId: string) => ({ orgId, actor: { kind: "system" as const, id: null, label: "concurrency test" }, ip: null });
+      const accepting = acceptDataset(db, gated, systemClock, acting(brackenridge), staged, { name: "shared.geojson", format: "geojson", mediaType: "application/geo+json", metadata: {} });
+      await paused;
+      const deleting = deleteDataset(db, store, systemClock, acting(tallow), held.id);
+      await new Promise((r) => setTimeout(r, 300)); // time enough for an unlocked delete to remove the object
+      resume();
+      const [{ dataset, created }] = await Promise.all([accepting, deleting]);
+      expect(created).toBe(true);
+      expect(await countRows("SELECT count(*) AS n FROM datasets WHERE id = $1", [held.id])).toBe(0);
+      expect(await countRows("SELECT count(*) AS n FROM datasets WHERE id = $1", [dataset.id])).toBe(1);
+      expect(await store.exists(contentKey(held.sha256, "datasets"))).toBe(true);
+    } finally {
+      await pool.end();
+    }
   });
 });
