@@ -16,6 +16,8 @@ export interface ConditionOptions {
   signal?: AbortSignal;
   /** called as each stage starts */
   onStage?(stage: ConditionStage): void;
+  /** called during the fill, the longest stage, with the share of it done (priorityFlood's onProgress) */
+  onFillProgress?(fraction: number): void;
 }
 
 export interface Conditioned {
@@ -51,7 +53,7 @@ export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry:
   if (options.epsilon) {
     onStage?.("fill");
     const dem = { data: elevation.data.slice(), width: w, height: h };
-    const fill = priorityFlood(dem, { epsilon: true, signal });
+    const fill = priorityFlood(dem, { epsilon: true, signal, onProgress: options.onFillProgress });
     onStage?.("directions");
     const donors = new Uint8Array(n);
     return { dem, directions: d8Directions(dem, geometry, { donors, signal }), donors, fill, flats: null, spare: null };
@@ -68,7 +70,7 @@ export async function conditionAndRoute(elevation: Grid<Float32Array>, geometry:
     const dir = bytes(n), donors = bytes(n);
     const state = new Int32Array(new SharedArrayBuffer(4 * n)), towards = new Int32Array(new SharedArrayBuffer(4 * n));
     const touched = helper.run("touchPages", dir, donors, state, towards);
-    const fill = priorityFlood(dem, { signal, flatCandidates: candidates });
+    const fill = priorityFlood(dem, { signal, flatCandidates: candidates, onProgress: options.onFillProgress });
     await touched;
 
     onStage?.("flats");

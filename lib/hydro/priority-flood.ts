@@ -13,6 +13,8 @@ export interface PriorityFloodOptions {
   traceSlopes?: boolean;
   /** checked every ABORT_CHECK_CELLS cells; an aborted signal throws its reason */
   signal?: AbortSignal;
+  /** called every ABORT_CHECK_CELLS cells with the share of the valid cells expanded so far (0–1) */
+  onProgress?(fraction: number): void;
   /** a zeroed bit set of (width·height + 31) >> 5 words (cell j is bit j & 31 of word j >> 5) in which
    *  the flood sets the bit of every cell it raises or closes from a neighbour of equal elevation. Every
    *  flat cell (no lower neighbour) is among them, since the cell that closes another is never higher
@@ -318,6 +320,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   }
 
   const traceSlopes = options.traceSlopes !== false;
+  const onProgress = options.onProgress;
   const slope = new CellStack();
   let cellsRaised = 0;
   let maxRaise = 0;
@@ -328,7 +331,11 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   // Imported bindings are read once: under CommonJS interop (tsx, bundlers) every read is a getter call.
   const abortMask = ABORT_CHECK_CELLS - 1;
   for (;;) {
-    if ((++processed & abortMask) === 0) signal?.throwIfAborted();
+    if ((++processed & abortMask) === 0) {
+      signal?.throwIfAborted();
+      // a slope cell with an open neighbour below is looked at twice, so the count may pass the cells
+      onProgress?.(Math.min(1, processed / (n - nodataCells)));
+    }
     // Every closed cell not yet expanded bounds the flooded region. A slope cell (no open neighbour
     // below its level) raises nothing, so it is expanded at once; the others wait for their turn.
     if (slope.length > 0) {

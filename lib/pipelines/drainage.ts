@@ -188,8 +188,12 @@ function streamsGeoJson(network: StreamNetwork, order: Int32Array, magnitude: Fl
 }
 
 /** Depression filling, flats and D8 (lib/hydro/condition.ts: two threads); the filled DEM is a copy. */
-async function conditionAndRoute(elevation: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, signal?: AbortSignal) {
-  const routed = await conditionDem(elevation, cellGeometry, { epsilon: params.epsilonFill, signal, onStage: stage });
+async function conditionAndRoute(
+  elevation: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, hooks: DrainageHooks,
+) {
+  const { signal } = hooks;
+  const onFillProgress = (f: number) => hooks.onProgress?.("fill", STAGES.fill + (STAGES.flats - STAGES.fill) * f);
+  const routed = await conditionDem(elevation, cellGeometry, { epsilon: params.epsilonFill, signal, onStage: stage, onFillProgress });
   const { fill, flats } = routed;
   return {
     z: routed.dem,
@@ -228,7 +232,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   const n = width * height;
   // conditioning works on a copy (the caller's elevations stay as they were); a DEM read here lets its
   // unfilled elevations go, as nothing after needs them
-  const conditioned = await conditionAndRoute(dem.elevation, cellGeometry, params, stage, signal);
+  const conditioned = await conditionAndRoute(dem.elevation, cellGeometry, params, stage, hooks);
   const { z, directions, donors, conditioning } = conditioned;
   if (!("dem" in input)) dem.elevation = z;
   stage("accumulation");

@@ -77,3 +77,20 @@ describe("the drainage stages cancelled in the middle of their loops", () => {
     expectCancelledInsideLoop((signal) => flowAccumulation(directions, dem, geometry, { signal }), rowChecks + 1, 0);
   });
 });
+
+describe("priorityFlood() progress", () => {
+  it("reports a rising share of the valid cells at each per-cell check, none past 1 (derived: ABORT_CHECK_CELLS)", () => {
+    const side = Math.ceil(Math.sqrt(3.1 * ABORT_CHECK_CELLS));
+    const dem = randomDem(side, side, 9, 0.01, false);
+    const seen: number[] = [];
+    priorityFlood(dem, { onProgress: (f) => seen.push(f) });
+    expect(seen.length).toBeGreaterThanOrEqual(3);
+    const valid = dem.data.filter((v) => !Number.isNaN(v)).length;
+    seen.forEach((f, k) => {
+      expect(f).toBeGreaterThan(0);
+      expect(f).toBeLessThanOrEqual(1);
+      if (k > 0) expect(f).toBeGreaterThan(seen[k - 1]);
+      expect(f).toBeCloseTo(Math.min(1, ((k + 1) * ABORT_CHECK_CELLS) / valid), 12);
+    });
+  });
+});
