@@ -104,6 +104,7 @@ describe("GET and DELETE /api/v1/datasets", () => {
     expect(await countRows("SELECT count(*) AS n FROM datasets WHERE id = $1", [d.id])).toBe(0);
     expect(await testStore().exists(contentKey(d.sha256, "datasets"))).toBe(false);
     expect(await countRows("SELECT count(*) AS n FROM audit_events WHERE action = 'dataset.delete' AND target = $1", [`dataset:${d.id}`])).toBe(1);
+    expect(await countRows("SELECT count(*) AS n FROM audit_events WHERE action = 'dataset.create' AND target = $1", [`dataset:${d.id}`])).toBe(1);
   });
 });
 

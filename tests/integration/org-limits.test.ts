@@ -72,6 +72,24 @@ describe("RILLSCALE_ORG_MAX_RUNNING_JOBS (issue 6: per-org limit on concurrent r
     console.log(`org running-jobs limit ${LIMIT}: most seen running ${mostRunning}, most overlapping by timestamps ${overlap}`);
     expect(overlap).toBe(LIMIT); // derived: the limit is reached and never passed
   });
+
+  it("a job waiting behind the limit is cancelled at once: it never starts, and the audit log names the cancel and what the job was (issue 6)", async () => {
+    const dem = await c.upload(key, readFileSync(await fbmDem(2048, 11)), "image/tiff", "fbm-2048-b.tif");
+    const first = await c.submit(key, { dataset: dem, kind: "drainage", params: { channelThreshold: { method: "area", km2: 0.5 } } });
+    await c.waitForJob(key, first.id, (j) => j.status === "running");
+    const waiting = await c.submit(key, { dataset: dem, kind: "surface", params: { estimators: ["variogram"] } });
+    expect((await c.getJob(key, waiting.id)).status).toBe("queued"); // derived: the one slot is taken
+    const res = await c.call(`/api/v1/jobs/${waiting.id}/cancel`, { method: "POST", key });
+    expect(res.status).toBe(200); // done at once: 200 with the job, where a running one answers 202 (RFC 9110 §15.3.3)
+    expect(((await res.json()) as JobTimes).status).toBe("cancelled"); // derived: a queued job has no worker to wait for
+    const done = await c.waitForJob(key, first.id, (j) => j.status === "succeeded" || j.status === "failed", 180_000);
+    expect(done.status).toBe("succeeded");
+    const after = await c.getJob(key, waiting.id);
+    expect(after).toMatchObject({ status: "cancelled", startedAt: null }); // derived: the slot freed, it still never ran
+    const audit = await c.call("/api/v1/audit?action=job.cancel", { cookie: await c.signIn(ADMIN) });
+    const events = ((await audit.json()) as { items: { target: string; details: { was?: string } }[] }).items;
+    expect(events.filter((e) => e.target === `job:${waiting.id}`).map((e) => e.details.was)).toEqual(["queued"]);
+  });
 });
 
 describe("RILLSCALE_RATE_PER_ORG_PER_MINUTE (issue 6; draft-ietf-httpapi-ratelimit-headers; RFC 6585 §4)", () => {
