@@ -53,8 +53,26 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     await page.getByRole("navigation", { name: "Console" }).getByRole("link", { name: "Datasets" }).click();
     const form = page.getByRole("form", { name: "Upload a dataset" });
     await form.getByLabel("File").setInputFiles(DEM);
+    // Sending slowed to 64 KiB/s (Chrome DevTools Protocol network emulation), about 3 s for the 188 kB file,
+    // so the bar is seen on its way from empty to full.
+    const cdp = await analyst.context.newCDPSession(page);
+    const throttle = (uploadThroughput: number) =>
+      cdp.send("Network.emulateNetworkConditions", { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput });
+    await cdp.send("Network.enable");
+    await throttle(64 * 1024);
     await form.getByRole("button", { name: "Upload" }).click();
-    await form.getByText("Uploaded “jacksboro.tif”").waitFor();
+    const bar = page.getByRole("progressbar", { name: "Upload progress" });
+    const done = form.getByText("Uploaded “jacksboro.tif”");
+    const percents: number[] = [];
+    for (const deadline = Date.now() + 60_000; !(await done.isVisible()) && Date.now() < deadline; ) {
+      const now = await bar.getAttribute("aria-valuenow", { timeout: 200 }).catch(() => null);
+      if (now !== null && percents.at(-1) !== Number(now)) percents.push(Number(now));
+      await page.waitForTimeout(50);
+    }
+    await throttle(-1);
+    await done.waitFor();
+    expect(percents.some((p) => p > 0 && p < 100), `upload progress seen: ${percents.join(", ")}`).toBe(true);
+    expect(percents).toEqual([...percents].sort((a, b) => a - b)); // it only rises
 
     const list = await page.request.get(`${baseUrl()}/api/v1/datasets`);
     expect(list.status()).toBe(200);
@@ -159,6 +177,28 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     await page.goto(`${baseUrl()}/jobs`);
     await page.getByRole("table", { name: "Jobs" }).waitFor();
     await page.screenshot({ path: path.join(SCREENSHOTS, "jobs.png"), fullPage: true });
+  });
+
+  test("the status and kind filters narrow the jobs table to the matching jobs, as the API's own filters do", async () => {
+    const { page } = analyst;
+    await page.goto(`${baseUrl()}/jobs`);
+    const table = page.getByRole("table", { name: "Jobs" });
+    const shownIds = async () => table.locator("tr[data-job-id]").evaluateAll((rows) => rows.map((r) => r.getAttribute("data-job-id")));
+    // the table's first page holds 50 jobs
+    const apiIds = async (query: string) =>
+      ((await (await page.request.get(`${baseUrl()}/api/v1/jobs?limit=50&${query}`)).json()) as { items: { id: string }[] }).items.map((j) => j.id);
+    await page.getByLabel("Kind", { exact: true }).selectOption("surface");
+    await expect.poll(shownIds).toEqual(await apiIds("kind=surface"));
+    expect((await shownIds()).length).toBeGreaterThan(0); // the surface job of the test before
+    await page.getByLabel("Status", { exact: true }).selectOption("succeeded");
+    await page.getByLabel("Kind", { exact: true }).selectOption("drainage");
+    await expect.poll(shownIds).toEqual(await apiIds("status=succeeded&kind=drainage"));
+    expect(await shownIds()).toContain(jobId);
+    // the other suites share this organisation, so there may be cancelled jobs or none
+    await page.getByLabel("Status", { exact: true }).selectOption("cancelled");
+    const cancelled = await apiIds("status=cancelled&kind=drainage");
+    if (cancelled.length === 0) await table.getByText("No job matches these filters.").waitFor();
+    else await expect.poll(shownIds).toEqual(cancelled);
   });
 
   test("a parameter out of bounds is named at its field, and a failed job's page shows why it failed", async () => {
