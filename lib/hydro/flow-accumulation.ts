@@ -41,6 +41,8 @@ export function flowAccumulation(
     /** two arrays of one Int32 a cell to use instead of new ones (conditionAndRoute's `spare`, whose
      *  pages are mapped already), for the cell counts (as Uint32) and the order; contents do not matter */
     reuse?: [Int32Array, Int32Array];
+    /** called every ABORT_CHECK_CELLS cells of the walk with the share of the valid cells ordered (0–1) */
+    onProgress?(fraction: number): void;
   } = {},
 ): FlowAccumulation {
   const { width: w, height: h } = directions;
@@ -119,7 +121,10 @@ export function flowAccumulation(
   const order = reuse ? reuse[1].subarray(0, validCells) : new Int32Array(validCells);
   let tail = 0, outlets = 0;
   for (let s = 0; s < n; s++) {
-    if ((s & abortMask) === 0) signal?.throwIfAborted();
+    if ((s & abortMask) === 0) {
+      signal?.throwIfAborted();
+      if (s > 0) options.onProgress?.(tail / validCells);
+    }
     if (donors[s] !== 0) continue; // waiting for donors, or passed already
     const zs = z[s];
     if (zs !== zs) continue; // nodata

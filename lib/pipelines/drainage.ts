@@ -211,9 +211,11 @@ async function conditionAndRoute(
 /** Contributing areas and flow lengths; the cell counts and the topological order (8 bytes a cell, in
  *  the conditioning's spare arrays when there are some) are dropped on return, as nothing after needs them. */
 function accumulate(
-  directions: Grid<Uint8Array>, donors: Uint8Array, spare: [Int32Array, Int32Array] | null, z: Grid<Float32Array>, cellGeometry: CellGeometry, signal?: AbortSignal,
+  directions: Grid<Uint8Array>, donors: Uint8Array, spare: [Int32Array, Int32Array] | null, z: Grid<Float32Array>, cellGeometry: CellGeometry, hooks: DrainageHooks,
 ) {
-  const acc = flowAccumulation(directions, z, cellGeometry, { signal, donors, reuse: spare ?? undefined });
+  const { signal } = hooks;
+  const onProgress = (f: number) => hooks.onProgress?.("accumulation", STAGES.accumulation + (STAGES.channels - STAGES.accumulation) * f);
+  const acc = flowAccumulation(directions, z, cellGeometry, { signal, donors, reuse: spare ?? undefined, onProgress });
   const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
   return { areaM2: acc.areaM2, flowLengthM, validCells: acc.validCells, outletCells: acc.outlets };
 }
@@ -236,7 +238,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   const { z, directions, donors, conditioning } = conditioned;
   if (!("dem" in input)) dem.elevation = z;
   stage("accumulation");
-  const acc = accumulate(directions, donors, conditioned.spare, z, cellGeometry, signal);
+  const acc = accumulate(directions, donors, conditioned.spare, z, cellGeometry, hooks);
   conditioned.spare = null; // now the cell counts and the order, which nothing after needs
   const flowLengthM = acc.flowLengthM;
 

@@ -94,3 +94,20 @@ describe("priorityFlood() progress", () => {
     });
   });
 });
+
+describe("flowAccumulation() progress", () => {
+  it("reports a rising share of the valid cells ordered, inside (0, 1], as the walk goes (derived: ABORT_CHECK_CELLS)", () => {
+    const side = Math.ceil(Math.sqrt(3.1 * ABORT_CHECK_CELLS));
+    const dem = randomDem(side, side, 10, 0, false);
+    priorityFlood(dem, { epsilon: true });
+    const geometry = projectedCellGeometry(side, 1, 1);
+    const seen: number[] = [];
+    flowAccumulation(d8Directions(dem, geometry), dem, geometry, { onProgress: (f) => seen.push(f) });
+    expect(seen.length).toBe(Math.floor((side * side - 1) / ABORT_CHECK_CELLS)); // one at each check after the first
+    seen.forEach((f, k) => {
+      expect(f).toBeGreaterThan(0);
+      expect(f).toBeLessThanOrEqual(1);
+      if (k > 0) expect(f).toBeGreaterThanOrEqual(seen[k - 1]);
+    });
+  });
+});
