@@ -6,9 +6,9 @@ import { datasets, jobs, type DatasetRow } from "@/db/schema";
 import { ApiError } from "@/lib/api/problem";
 import { appendAudit, type AuditInput } from "@/lib/audit/log";
 import type { Clock } from "@/lib/auth/clock";
-import { discardStaged, storeStaged, type StagedFile, type StoredContent } from "@/lib/ingest/stream-to-store";
+import { discardStaged, storeStaged, type StagedFile } from "@/lib/ingest/stream-to-store";
 import type { DatasetFormat } from "@/lib/jobs/kinds";
-import { contentKey, type ObjectStore } from "@/lib/storage";
+import type { ObjectStore } from "@/lib/storage";
 import { decodeCursor, encodeCursor } from "@/lib/jobs/cursor";
 
 export interface Acting {
@@ -25,27 +25,33 @@ export interface NewDataset {
 }
 
 /** Stores the staged bytes and records the dataset; the same bytes already held by the org give its dataset
- *  back (`created: false`). The staged file is always consumed. Runs under the content key's lock (see
- *  withContentLock), so a delete of another row holding the same bytes cannot remove the object between its
- *  storing and the new row; the lock is held while the bytes are stored, one connection for that time. */
+ *  back (`created: false`). The staged file is always consumed. The bytes are stored first, with no lock held
+ *  (an upload to a remote store may take long); the row is then inserted under the content key's lock (see
+ *  withContentLock) only if the object is still there: a delete of another row holding the same bytes may
+ *  have removed it in between, and the upload is then refused (409) with nothing recorded, to be sent again. */
 export async function acceptDataset(
   db: Db, store: ObjectStore, clock: Clock, acting: Acting, staged: StagedFile, d: NewDataset,
 ): Promise<{ dataset: DatasetRow; created: boolean }> {
-  const key = contentKey(staged.sha256, DATASET_KIND);
-  let stored: StoredContent | null = null;
+  const existing = await findByHash(db, acting.orgId, staged.sha256);
+  if (existing) {
+    await discardStaged(staged);
+    return { dataset: existing, created: false };
+  }
+  const stored = await storeStaged(store, staged, DATASET_KIND, { contentType: d.mediaType });
   try {
-    return await withContentLock(db, key, async (tx) => {
-      const existing = await findByHash(tx, acting.orgId, staged.sha256);
-      if (existing) {
-        await discardStaged(staged);
-        return { dataset: existing, created: false };
+    return await withContentLock(db, stored.key, async (tx) => {
+      if (!(await store.exists(stored.key))) {
+        throw new ApiError("conflict", "The same bytes were being deleted from another dataset while this upload stored them; send the upload again.");
       }
-      stored = await storeStaged(store, staged, DATASET_KIND, { contentType: d.mediaType });
       const [row] = await tx.insert(datasets).values({
         orgId: acting.orgId, name: d.name, format: d.format, mediaType: d.mediaType, sha256: staged.sha256,
         sizeBytes: staged.size, storageKey: stored.key, metadata: d.metadata, createdBy: acting.actor,
         createdAt: clock.now(), // millisecond precision, as the cursor carries it
-      }).returning();
+      }).onConflictDoNothing().returning();
+      if (!row) {
+        // a concurrent upload of the same bytes by this organisation won the insert
+        return { dataset: (await findByHash(tx, acting.orgId, staged.sha256))!, created: false };
+      }
       await appendAudit(tx, {
         orgId: acting.orgId, action: "dataset.create", actor: acting.actor, target: `dataset:${row.id}`, ip: acting.ip,
         details: { name: row.name, format: row.format, sha256: row.sha256, sizeBytes: row.sizeBytes },
@@ -53,9 +59,9 @@ export async function acceptDataset(
       return { dataset: row, created: true };
     });
   } catch (e) {
-    await discardStaged(staged);
-    // the transaction rolled back: an object this call stored and no row uses goes too
-    if (stored !== null && !(stored as StoredContent).reused) await withContentLock(db, key, (tx) => removeObjectIfUnused(tx, store, key));
+    // the transaction rolled back: an object this call stored and no row uses goes too (a failure of that
+    // clean-up leaves an unused object behind, and must not hide the error that matters)
+    if (!stored.reused) await withContentLock(db, stored.key, (tx) => removeObjectIfUnused(tx, store, stored.key)).catch(() => undefined);
     throw e;
   }
 }
@@ -65,9 +71,9 @@ const DATASET_KIND = "datasets";
 
 /**
  * Runs `work` in a transaction holding an advisory lock on one object key (common practice: Postgres
- * pg_advisory_xact_lock on a hash of the key, released at commit or rollback). Every path that stores
- * or removes a dataset object takes it, so the check "no row uses this object" and the row that starts
- * using it can never interleave.
+ * pg_advisory_xact_lock on a hash of the key, released at commit or rollback). The check "no row uses this
+ * object" before removing it, and the check "the object is there" before a row starts using it, both run
+ * under it, so neither can act on a state the other is changing.
  */
 async function withContentLock<T>(db: Db, key: string, work: (tx: Db) => Promise<T>): Promise<T> {
   return db.transaction(async (tx) => {
@@ -121,11 +127,12 @@ export async function listDatasets(db: Db, orgId: string, f: DatasetFilter): Pro
   return { items, nextCursor: rows.length > f.limit ? encodeCursor(items[items.length - 1].createdAt, items[items.length - 1].id) : null };
 }
 
-/** Refused (409) while a queued or running job reads the dataset; finished jobs keep their results. The row,
- *  the object when no other row uses it, and the audit entry go together, under the content key's lock. */
+/** Refused (409) while a queued or running job reads the dataset; finished jobs keep their results. The row and
+ *  its audit entry go in one transaction; then, under the content key's lock, the object if no row uses it
+ *  (after the commit: an object store cannot roll back). */
 export async function deleteDataset(db: Db, store: ObjectStore, clock: Clock, acting: Acting, id: string): Promise<void> {
   const row = await getDataset(db, acting.orgId, id);
-  await withContentLock(db, row.storageKey, async (tx) => {
+  await db.transaction(async (tx) => {
     const [busy] = await tx.select({ id: jobs.id }).from(jobs)
       .where(and(eq(jobs.datasetId, id), inArray(jobs.status, ["queued", "running"]))).limit(1).for("update");
     if (busy) throw new ApiError("conflict", `Job ${busy.id} is using this dataset; cancel it or wait for it to finish.`);
@@ -135,7 +142,6 @@ export async function deleteDataset(db: Db, store: ObjectStore, clock: Clock, ac
       orgId: acting.orgId, action: "dataset.delete", actor: acting.actor, target: `dataset:${id}`, ip: acting.ip,
       details: { name: row.name, sha256: row.sha256 },
     }, clock);
-    // last: an object store cannot roll back, so it goes only once everything else has succeeded
-    await removeObjectIfUnused(tx, store, row.storageKey);
   });
+  await withContentLock(db, row.storageKey, (tx) => removeObjectIfUnused(tx, store, row.storageKey));
 }

@@ -109,16 +109,17 @@ describe("GET and DELETE /api/v1/datasets", () => {
 });
 
 describe("the same bytes deleted by one organisation while another uploads them", () => {
-  it("keep their stored object: the delete waits for the upload's row under the content key's lock (derived: the object is shared)", async () => {
+  it("are never recorded without their object: the upload that reused them is refused with 409 and nothing kept, and sent again it succeeds (derived: the object is shared)", async () => {
     const bytes = new TextEncoder().encode(JSON.stringify({ type: "Feature", properties: { run: randomUUID() }, geometry: { type: "LineString", coordinates: [[0, 0], [0.02, 0.01]] } }));
     const held = await uploadOk(key, bytes, "application/geo+json");
+    const objectKey = contentKey(held.sha256, "datasets");
     const owner = ownerPool();
     const orgOf = async (slug: string) => (await owner.query("SELECT id FROM organisations WHERE slug = $1", [slug])).rows[0].id as string;
     const [tallow, brackenridge] = [await orgOf("tallow-creek"), await orgOf("brackenridge")];
     await owner.end();
     const { pool, db } = appDb();
-    // The upload pauses after finding the object already stored (so it will reuse it), before its row exists:
-    // the moment at which a delete that saw no other row would remove the object under it.
+    // The upload pauses once it has found the object already stored (so it will reuse it), before its row
+    // exists; the other organisation's delete then runs to its end, removing the object no row uses.
     let reachedPause!: () => void, resume!: () => void;
     const paused = new Promise<void>((r) => (reachedPause = r)), resumed = new Promise<void>((r) => (resume = r));
     const store = testStore();
@@ -132,20 +133,24 @@ describe("the same bytes deleted by one organisation while another uploads them"
         }
         : (target[name as keyof ObjectStore] as unknown as (...a: unknown[]) => unknown).bind?.(target) ?? target[name as keyof ObjectStore],
     }) as ObjectStore;
+    const acting = (orgId: string) => ({ orgId, actor: { kind: "system" as const, id: null, label: "concurrency test" }, ip: null });
+    const body = { name: "shared.geojson", format: "geojson" as const, mediaType: "application/geo+json", metadata: {} };
+    const rowsOfOther = () => countRows("SELECT count(*) AS n FROM datasets WHERE sha256 = $1 AND org_id = $2", [held.sha256, brackenridge]);
     try {
-      const staged = await stageToTempFile(bytes, stagingDir(), { maxBytes: 1 << 20 });
-      const acting = (orgId: string) => ({ orgId, actor: { kind: "system" as const, id: null, label: "concurrency test" }, ip: null });
-      const accepting = acceptDataset(db, gated, systemClock, acting(brackenridge), staged, { name: "shared.geojson", format: "geojson", mediaType: "application/geo+json", metadata: {} });
+      const accepting = acceptDataset(db, gated, systemClock, acting(brackenridge), await stageToTempFile(bytes, stagingDir(), { maxBytes: 1 << 20 }), body);
       await paused;
-      const deleting = deleteDataset(db, store, systemClock, acting(tallow), held.id);
-      await new Promise((r) => setTimeout(r, 300)); // time enough for an unlocked delete to remove the object
+      await deleteDataset(db, store, systemClock, acting(tallow), held.id);
+      expect(await store.exists(objectKey)).toBe(false); // derived: no row used it any more
       resume();
-      const [{ dataset, created }] = await Promise.all([accepting, deleting]);
-      expect(created).toBe(true);
-      expect(await countRows("SELECT count(*) AS n FROM datasets WHERE id = $1", [held.id])).toBe(0);
-      expect(await countRows("SELECT count(*) AS n FROM datasets WHERE id = $1", [dataset.id])).toBe(1);
-      expect(await store.exists(contentKey(held.sha256, "datasets"))).toBe(true);
+      await expect(accepting).rejects.toMatchObject({ kind: "conflict" });
+      expect(await rowsOfOther()).toBe(0);
+      // sent again, the bytes are stored afresh and recorded
+      const again = await acceptDataset(db, store, systemClock, acting(brackenridge), await stageToTempFile(bytes, stagingDir(), { maxBytes: 1 << 20 }), body);
+      expect(again.created).toBe(true);
+      expect(await rowsOfOther()).toBe(1);
+      expect(await store.exists(objectKey)).toBe(true);
     } finally {
+      resume();
       await pool.end();
     }
   });
