@@ -68,6 +68,7 @@ export function flowAccumulation(
   if (reuse !== undefined && (reuse[0].length !== n || reuse[1].length !== n)) {
     throw new RangeError(`the arrays to reuse have ${reuse[0].length} and ${reuse[1].length} cells, the grid has ${n}`);
   }
+  if (reuse !== undefined && reuse[0].buffer === reuse[1].buffer) throw new RangeError("the two arrays to reuse share one buffer");
   const cells = reuse ? new Uint32Array(reuse[0].buffer, reuse[0].byteOffset, n).fill(0) : new Uint32Array(n);
   const areaM2 = new Float64Array(n);
   // On a projected grid every cell has one area: accumulate counts only and write the areas after the
@@ -123,7 +124,7 @@ export function flowAccumulation(
   for (let s = 0; s < n; s++) {
     if ((s & abortMask) === 0) {
       signal?.throwIfAborted();
-      if (s > 0) options.onProgress?.(tail / validCells);
+      if (s > 0 && validCells > 0) options.onProgress?.(tail / validCells);
     }
     if (donors[s] !== 0) continue; // waiting for donors, or passed already
     const zs = z[s];

@@ -247,7 +247,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
   // would not), with a closed row and one closed cell before and after the grid: cell j is bit j + pad.
   // A cell's eight neighbours are then three runs of three bits, read in three loads.
   const pad = w + 1;
-  const closed = new Int32Array(((n + 2 * pad + 31) >>> 5) + 1); // + 1: a run may reach into the next word
+  const closed = new Int32Array((n + 2 * pad + 31) >>> 5); // the last run, of the last cell, ends at the last padding bit
   const close = (j: number) => {
     closed[(j + pad) >> 5] |= 1 << ((j + pad) & 31);
   };

@@ -133,6 +133,8 @@ describe("flowAccumulation()", () => {
     expect(reused.cells.buffer).toBe(spare[0].buffer);
     expect(reused.order.buffer).toBe(spare[1].buffer);
     expect(() => flowAccumulation(dir, dem, projectedCellGeometry(37, 30, 30), { reuse: [new Int32Array(n - 1), new Int32Array(n)] })).toThrow(RangeError);
+    const one = new Int32Array(n);
+    expect(() => flowAccumulation(dir, dem, projectedCellGeometry(37, 30, 30), { reuse: [one, one] })).toThrow(RangeError);
   });
 
   it("rejects directions that form a cycle, leave the grid or enter nodata", () => {

@@ -6,7 +6,7 @@ import { JOB_KINDS } from "@/lib/jobs/kinds";
 
 interface Schema {
   $ref?: string;
-  type?: string;
+  type?: string | string[];
   description?: string;
   minimum?: number;
   exclusiveMinimum?: number;
@@ -22,7 +22,8 @@ const doc = buildOpenApiDocument() as unknown as { components: { schemas: Record
 /** Every numeric property under a schema, with its property name and path. */
 function numbers(s: Schema, path: string, name: string, out: { path: string; name: string; s: Schema }[] = []) {
   if (s.$ref) return numbers(doc.components.schemas[s.$ref.split("/").pop()!], path, name, out);
-  if (s.type === "number" || s.type === "integer") out.push({ path, name, s });
+  const types = Array.isArray(s.type) ? s.type : [s.type]; // OpenAPI 3.1: a nullable number is ["number", "null"]
+  if (types.includes("number") || types.includes("integer")) out.push({ path, name, s });
   for (const list of [s.anyOf, s.oneOf, s.allOf]) list?.forEach((x, i) => numbers(x, `${path}|${i}`, name, out));
   for (const [k, v] of Object.entries(s.properties ?? {})) numbers(v, `${path}.${k}`, k, out);
   if (s.items) numbers(s.items, `${path}[]`, name, out);
