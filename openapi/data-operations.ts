@@ -29,7 +29,7 @@ export function dataOperations(): DocumentedOperation[] {
   return [
     {
       method: "post", path: "/api/v1/datasets", summary: "Upload a dataset (DEM or stream lines)", permission: "datasets:write", query: J.DatasetUploadQuery,
-      description: "Send the file as the raw body (`image/tiff`, `application/geo+json`, `application/zip` with `?filename=`) or as the one file part of `multipart/form-data` (an `epsg` field may precede it). The body is streamed to storage while its SHA-256 and size are taken; its metadata is read in a sandboxed process (memory limit and deadline) before it is accepted. A file that cannot be read answers 422 naming the problem, and nothing is kept. The same bytes uploaded again by the organisation answer 200 with the existing dataset. Idempotent by content: the same file never makes two datasets.",
+      description: "Send the file as the raw body (`image/tiff`, `application/geo+json`, `application/zip` with `?filename=`) or as the one file part of `multipart/form-data` (an `epsg` field may precede it). The body is streamed to storage while its SHA-256 and size are taken; its metadata is read in a sandboxed process (memory limit and deadline) before it is accepted. A file that cannot be read answers 422 naming the problem, and nothing is kept. The same bytes uploaded again by the organisation answer 200 with the existing dataset. Idempotent by content: the same file never makes two datasets. In the rare case that another organisation deleted the same bytes while they were being stored, the upload answers 409 with nothing kept: send it again.",
       body: {
         required: true,
         content: {
@@ -40,7 +40,7 @@ export function dataOperations(): DocumentedOperation[] {
         },
       } as never,
       ok: { status: 201, description: "Accepted (200 when the organisation already had these bytes).", content: json(J.Dataset), headers: { Location: stringHeader("The dataset.") } },
-      errors: [...AUTH, 400, 413, 415, 422],
+      errors: [...AUTH, 400, 409, 413, 415, 422],
     },
     { method: "get", path: "/api/v1/datasets", summary: "List datasets, newest first", permission: "jobs:read", query: J.DatasetListQuery, ok: { status: 200, description: "A page.", content: json(J.DatasetList) }, errors: [...AUTH, 422] },
     { method: "get", path: "/api/v1/datasets/{id}", summary: "A dataset and its metadata", permission: "jobs:read", params: J.IdParams, ok: { status: 200, description: "The dataset.", content: json(J.Dataset) }, errors: [...AUTH, 404] },
