@@ -138,9 +138,10 @@ export function runInSandbox<T>(
 ): Promise<SandboxRun<T>> {
   const l = { ...DEFAULT_SANDBOX_LIMITS, ...limits };
   checkLimits(l);
-  const root = path.resolve(options.projectRoot ?? process.cwd());
+  // runtime paths: the ignore comments keep Next's build from tracing the whole project through them
+  const root = path.resolve(/*turbopackIgnore: true*/ options.projectRoot ?? process.cwd());
   const entryPath = path.resolve(root, entry);
-  if (!existsSync(entryPath)) throw new Error(`sandbox entry ${entryPath} does not exist`);
+  if (!existsSync(/*turbopackIgnore: true*/ entryPath)) throw new Error(`sandbox entry ${entryPath} does not exist`);
   const run = () => {
     if (!options.keepSpare) return serve<T>(startChild(root, entryPath, l.maxOldSpaceMb), request, l);
     return serve<T>(takeSpare(root, entryPath, l.maxOldSpaceMb), request, l)

@@ -314,7 +314,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
     bytes: streamsGeoJson(network, order, magnitude, lonLatTransformer(georef.crs)),
   }];
   for (const f of files) {
-    const filePath = path.join(outDir, f.name);
+    const filePath = path.join(/*turbopackIgnore: true*/ outDir, f.name); // a runtime folder: not for Next's build to trace
     await writeGeoTiff(filePath, f.grid, georef, { nodata: f.nodata });
     artifacts.push({ name: f.name, mediaType: "image/tiff; application=geotiff", path: filePath });
   }
