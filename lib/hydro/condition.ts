@@ -37,8 +37,8 @@ export interface Conditioned {
 /**
  * Fills `elevation` (a copy of it), resolves its flats and sets D8 directions with donor counts. A helper
  * thread starts while the fill runs and maps the pages of the later stages' arrays, then sets the D8
- * directions of every cell from the elevations
- * alone, which do not depend on the flats (flat cells get NO_FLOW), while this thread finds the flats;
+ * directions of every cell from the elevations alone, which do not depend on the flats (flat cells get
+ * NO_FLOW), while this thread finds the flats;
  * then the two breadth-first searches of the flat resolution run at once, towards lower terrain in the
  * helper and from higher terrain here. Last, both threads route the flat cells by their increments. The
  * results are those of priorityFlood, resolveFlats and d8Directions run one after another.

@@ -260,7 +260,7 @@ export function priorityFlood(dem: Grid<Float32Array>, options: PriorityFloodOpt
     const v = closed[q >> 5] >>> b;
     return (b > 29 ? v | (closed[(q >> 5) + 1] << (32 - b)) : v) & 7;
   };
-  // Bit k of an open-neighbour mask is the neighbour at NEIGHBOUR_OFFSETS[k]: the row above, west and
+  // Bit k of an open-neighbour mask is the neighbour at neighbourOffsets[k]: the row above, west and
   // east, the row below. Each cell is opened once, so a cell has on average one open neighbour when it
   // is expanded; walking the mask's bits skips the closed ones without a test each.
   const neighbourOffsets = Int32Array.of(-w - 1, -w, -w + 1, -1, 1, w - 1, w, w + 1);

@@ -105,6 +105,7 @@ const STAGES = {
   network: 0.75, analysis: 0.8, artifacts: 0.9,
 } as const;
 type Stage = keyof typeof STAGES;
+type Clock = ReturnType<typeof stageClock<Stage>>;
 
 function ratioSummary(r: HortonRatio | null) {
   if (!r) return null;
@@ -188,18 +189,16 @@ function streamsGeoJson(network: StreamNetwork, order: Int32Array, magnitude: Fl
 }
 
 /** Depression filling, flats and D8 (lib/hydro/condition.ts: two threads); the filled DEM is a copy. */
-async function conditionAndRoute(
-  elevation: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, stage: (s: Stage) => void, hooks: DrainageHooks,
-) {
-  const { signal } = hooks;
-  const onFillProgress = (f: number) => hooks.onProgress?.("fill", STAGES.fill + (STAGES.flats - STAGES.fill) * f);
-  const routed = await conditionDem(elevation, cellGeometry, { epsilon: params.epsilonFill, signal, onStage: stage, onFillProgress });
+async function conditionAndRoute(elevation: Grid<Float32Array>, cellGeometry: CellGeometry, params: Params, clock: Clock, signal?: AbortSignal) {
+  const routed = await conditionDem(elevation, cellGeometry, {
+    epsilon: params.epsilonFill, signal, onStage: clock.stage, onFillProgress: (f) => clock.within("fill", f),
+  });
   const { fill, flats } = routed;
   return {
     z: routed.dem,
     directions: routed.directions,
     donors: routed.donors,
-    spare: routed.spare as [Int32Array, Int32Array] | null,
+    spare: routed.spare,
     conditioning: {
       method: params.epsilonFill ? "priority-flood-epsilon" : "priority-flood-with-flat-resolution",
       cellsRaised: fill.cellsRaised, maxRaiseM: fill.maxRaise,
@@ -211,10 +210,10 @@ async function conditionAndRoute(
 /** Contributing areas and flow lengths; the cell counts and the topological order (8 bytes a cell, in
  *  the conditioning's spare arrays when there are some) are dropped on return, as nothing after needs them. */
 function accumulate(
-  directions: Grid<Uint8Array>, donors: Uint8Array, spare: [Int32Array, Int32Array] | null, z: Grid<Float32Array>, cellGeometry: CellGeometry, hooks: DrainageHooks,
+  directions: Grid<Uint8Array>, donors: Uint8Array, spare: [Int32Array, Int32Array] | null, z: Grid<Float32Array>, cellGeometry: CellGeometry,
+  clock: Clock, signal?: AbortSignal,
 ) {
-  const { signal } = hooks;
-  const onProgress = (f: number) => hooks.onProgress?.("accumulation", STAGES.accumulation + (STAGES.channels - STAGES.accumulation) * f);
+  const onProgress = (f: number) => clock.within("accumulation", f);
   const acc = flowAccumulation(directions, z, cellGeometry, { signal, donors, reuse: spare ?? undefined, onProgress });
   const flowLengthM = longestFlowPath(directions, acc.order, cellGeometry, signal);
   return { areaM2: acc.areaM2, flowLengthM, validCells: acc.validCells, outletCells: acc.outlets };
@@ -234,11 +233,11 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
   const n = width * height;
   // conditioning works on a copy (the caller's elevations stay as they were); a DEM read here lets its
   // unfilled elevations go, as nothing after needs them
-  const conditioned = await conditionAndRoute(dem.elevation, cellGeometry, params, stage, hooks);
+  const conditioned = await conditionAndRoute(dem.elevation, cellGeometry, params, clock, signal);
   const { z, directions, donors, conditioning } = conditioned;
   if (!("dem" in input)) dem.elevation = z;
   stage("accumulation");
-  const acc = accumulate(directions, donors, conditioned.spare, z, cellGeometry, hooks);
+  const acc = accumulate(directions, donors, conditioned.spare, z, cellGeometry, clock, signal);
   conditioned.spare = null; // now the cell counts and the order, which nothing after needs
   const flowLengthM = acc.flowLengthM;
 
@@ -254,7 +253,7 @@ export async function runDrainage(input: DrainageInput, rawParams: DrainageParam
     const thresholds = logSpacedThresholds(ct.minKm2 * M2_PER_KM2, ct.maxKm2 * M2_PER_KM2, ct.candidates);
     let done = 0;
     const result = constantDropThreshold((t) => {
-      hooks.onProgress?.("channels", STAGES.channels + ((STAGES.network - STAGES.channels) * done++) / thresholds.length);
+      clock.within("channels", done++ / thresholds.length);
       return networkFromRaster({ ...base, thresholdM2: t }).network;
     }, { thresholdsM2: thresholds, variance: ct.variance, criticalT: ct.criticalT, signal });
     constantDrop = constantDropSummary(result);

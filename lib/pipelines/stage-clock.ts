@@ -8,6 +8,9 @@ export interface StageHooks {
 
 export function stageClock<S extends string>(startFractions: Record<S, number>, hooks: StageHooks) {
   const timingsS: Partial<Record<S, number>> = {};
+  // a stage's share of the run ends where the next stage (in the object's order) starts, the last at 1
+  const starts = Object.values<number>(startFractions);
+  const endOf = (name: S) => starts[Object.keys(startFractions).indexOf(name) + 1] ?? 1;
   let current: S | null = null, started = 0;
   const close = () => {
     if (current) timingsS[current] = (performance.now() - started) / 1000;
@@ -21,6 +24,10 @@ export function stageClock<S extends string>(startFractions: Record<S, number>, 
       close();
       current = name; started = performance.now();
       hooks.onProgress?.(name, startFractions[name]);
+    },
+    /** reports `fraction` (0–1) of stage `name` done, as a share of the whole run */
+    within(name: S, fraction: number): void {
+      hooks.onProgress?.(name, startFractions[name] + (endOf(name) - startFractions[name]) * fraction);
     },
     /** ends the last stage and reports completion */
     done(): void {

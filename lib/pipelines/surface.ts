@@ -166,7 +166,7 @@ export async function runSurface(input: SurfaceInput, rawParams: SurfaceParams, 
     stage("local-dimension");
     const win = Math.min(params.localWindowCells, width, height);
     localMap = localDimension(grid, geometry, { window: win, step: params.localStepCells, minValidFraction: params.localMinValidFraction },
-      (f) => { signal?.throwIfAborted(); hooks.onProgress?.("local-dimension", STAGES["local-dimension"] + f * (STAGES.profiles - STAGES["local-dimension"])); });
+      (f) => { signal?.throwIfAborted(); clock.within("local-dimension", f); });
     estimators.localDimension = {
       method: localMap.method, units: localMap.units, windowCells: localMap.window, stepCells: localMap.step, lagsCells: localMap.lags,
       mapSize: [localMap.dimension.width, localMap.dimension.height], summary: localMap.summary,
