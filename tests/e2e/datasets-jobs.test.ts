@@ -75,7 +75,7 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     }
     await done.waitFor();
     expect(percents.some((p) => p > 0 && p < 100), `upload progress seen: ${percents.join(", ")}`).toBe(true);
-    expect(percents).toEqual([...percents].sort((a, b) => a - b)); // it only rises
+    expect(percents).toEqual([...percents].sort((a, b) => a - b)); // derived: bytes sent only grow
 
     const list = await page.request.get(`${baseUrl()}/api/v1/datasets`);
     expect(list.status()).toBe(200);
@@ -182,7 +182,7 @@ describe("console: upload a DEM, run a drainage analysis, read and download its 
     await page.screenshot({ path: path.join(SCREENSHOTS, "jobs.png"), fullPage: true });
   });
 
-  test("the status and kind filters narrow the jobs table to the matching jobs, as the API's own filters do", async () => {
+  test("the status and kind filters narrow the jobs table to the matching jobs, as the API's own filters do (derived: one query)", async () => {
     const { page } = analyst;
     await page.goto(`${baseUrl()}/jobs`);
     const table = page.getByRole("table", { name: "Jobs" });
